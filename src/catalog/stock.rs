@@ -1,0 +1,1 @@
+//! In-house stock lists.

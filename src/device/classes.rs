@@ -1,0 +1,1 @@
+//! Generic device classes from `catalogs/devices.toml`.

@@ -1,0 +1,109 @@
+//! The specification: what the engineer asks for.
+//!
+//! `parse` turns TOML text into a [`ValidSpec`], in which every number is
+//! checked, finite and in SI units. Raw serde structures live in `raw`;
+//! nothing outside this module sees them.
+//!
+//! This module does no file I/O: text comes in, a checked value goes out.
+
+use crate::catalog::ESeries;
+use crate::device::Device;
+use serde::Serialize;
+
+/// Sign of the mid-band gain the engineer wants.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Polarity {
+    /// Output inverted with respect to the input (common source).
+    Inverting,
+    /// Output in phase (follower, common gate).
+    NonInverting,
+    /// Either sign.
+    Any,
+}
+
+/// Mid-band gain requirement.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Target {
+    /// Magnitude of the mid-band voltage gain, V/V, > 0.
+    pub gain: f64,
+    /// Relative tolerance: |gain| within gain·(1 ± tolerance); in (0, 1).
+    pub tolerance: f64,
+    /// Required sign.
+    pub polarity: Polarity,
+}
+
+/// Supply rails.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Supply {
+    /// Positive rail, volts, > 0.
+    pub vdd_v: f64,
+    /// Negative rail, volts, <= 0 (0 = single supply).
+    pub vss_v: f64,
+    /// Relative tolerance of both rails, in [0, 1) (0 = exact).
+    pub tolerance: f64,
+}
+
+/// Which resistor values may be used.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum CatalogChoice {
+    /// An IEC 60063 series.
+    Series(ESeries),
+    /// A stock-list TOML file, path as written in the spec (relative to the
+    /// spec file's folder).
+    StockFile(String),
+}
+
+/// Resistor choice and tolerance.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Parts {
+    /// The catalog to draw values from.
+    pub catalog: CatalogChoice,
+    /// Relative tolerance of every resistor, in [0, 1); 0 = ideal. `None`
+    /// means the series' customary tolerance (or each stock entry's own).
+    pub tolerance: Option<f64>,
+    /// Smallest allowed resistance, ohms.
+    pub r_min_ohm: f64,
+    /// Largest allowed resistance, ohms.
+    pub r_max_ohm: f64,
+}
+
+/// Optional limits.
+#[derive(Debug, Clone, Default, PartialEq, Serialize)]
+pub struct Limits {
+    /// Largest quiescent drain current at any corner, amps.
+    pub id_max_a: Option<f64>,
+    /// Largest supply power at any corner, watts.
+    pub power_max_w: Option<f64>,
+    /// Largest output impedance at any corner, ohms.
+    pub zout_max_ohm: Option<f64>,
+}
+
+/// A checked specification: every field finite and within its rule.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ValidSpec {
+    /// Free-text name of the design problem.
+    pub name: String,
+    /// Gain requirement.
+    pub target: Target,
+    /// Supply rails.
+    pub supply: Supply,
+    /// Load resistance, ohms, AC-coupled to the output.
+    pub rl_ohm: f64,
+    /// Minimum input impedance, ohms.
+    pub zin_min_ohm: f64,
+    /// Signal source resistance, ohms (0 when not given).
+    pub source_resistance_ohm: f64,
+    /// Minimum drain–source voltage at every corner, volts (saturation is
+    /// checked separately).
+    pub vds_min_v: f64,
+    /// Optional limits.
+    pub limits: Limits,
+    /// Low-frequency −3 dB corner, hertz, when capacitors are to be sized.
+    pub f_low_hz: Option<f64>,
+    /// The device with its spread and ratings.
+    pub device: Device,
+    /// Resistor choice.
+    pub parts: Parts,
+}

@@ -1,0 +1,319 @@
+//! Engineering notation: parsing and printing of values such as `4k7`, `2.2M`,
+//! `10meg`, `100n` and `1.5e3`.
+//!
+//! Values are plain `f64` in SI base units (ohms, volts, amps, farads, hertz,
+//! watts). Names of variables and fields carry the unit as a suffix
+//! (`rd_ohm`, `vds_v`, `id_a`) and doc comments state it.
+//!
+//! Suffixes (case-sensitive where it matters, as engineers write them):
+//! `f` 1e-15, `p` 1e-12, `n` 1e-9, `u`/`µ` 1e-6, `m` 1e-3 (milli), `k`/`K` 1e3,
+//! `M` 1e6 (mega), `meg`/`MEG`/`Meg` 1e6, `G` 1e9, `T` 1e12. The suffix may
+//! stand in place of the decimal point (`4k7` = 4700, `2M2` = 2.2e6,
+//! `4R7` = 4.7 with `R` as the unit-less marker). A trailing unit letter
+//! (`Ω`, `ohm`, `V`, `A`, `F`, `Hz`, `W`, `S`) is accepted and ignored.
+//!
+//! This module must not know about circuits: it only turns text into numbers
+//! and numbers into text.
+
+use std::fmt;
+
+/// A value that could not be read as engineering notation.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ParseValueError {
+    /// The text exactly as given.
+    pub text: String,
+    /// Why it was refused.
+    pub reason: String,
+}
+
+impl fmt::Display for ParseValueError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(
+            f,
+            "`{}` is not a value in engineering notation ({}); expected e.g. 4k7, 2.2M, 100n, 10meg or 1.5e3",
+            self.text, self.reason
+        )
+    }
+}
+
+impl std::error::Error for ParseValueError {}
+
+/// Multiplier of an SI prefix letter, if `c` is one (`m` milli, `M` mega).
+fn prefix_multiplier(c: char) -> Option<f64> {
+    Some(match c {
+        'f' => 1e-15,
+        'p' => 1e-12,
+        'n' => 1e-9,
+        'u' | 'µ' | 'μ' => 1e-6,
+        'm' => 1e-3,
+        'k' | 'K' => 1e3,
+        'M' => 1e6,
+        'G' => 1e9,
+        'T' => 1e12,
+        'R' | 'r' => 1.0,
+        _ => return None,
+    })
+}
+
+/// Unit words that may follow a value and carry no scale.
+const UNIT_WORDS: [&str; 10] = ["ohms", "ohm", "Ω", "Hz", "V", "A", "F", "W", "S", "s"];
+
+fn strip_unit(s: &str) -> &str {
+    for w in UNIT_WORDS {
+        if let Some(rest) = s.strip_suffix(w) {
+            // Do not strip the only character: "F" alone is not a number anyway,
+            // and "1S" must still parse as one siemens.
+            if !rest.is_empty() {
+                return rest;
+            }
+        }
+    }
+    s
+}
+
+/// Parse engineering notation into a number in SI base units.
+///
+/// ```
+/// use gatewright::units::parse_value;
+/// assert_eq!(parse_value("4k7").unwrap(), 4700.0);
+/// assert_eq!(parse_value("2M2").unwrap(), 2.2e6);
+/// assert_eq!(parse_value("10meg").unwrap(), 1.0e7);
+/// assert!((parse_value("15m").unwrap() - 0.015).abs() < 1e-15);
+/// assert!(parse_value("4k7k").is_err());
+/// ```
+pub fn parse_value(text: &str) -> Result<f64, ParseValueError> {
+    let err = |reason: &str| ParseValueError {
+        text: text.to_string(),
+        reason: reason.to_string(),
+    };
+    let s = text.trim();
+    if s.is_empty() {
+        return Err(err("empty"));
+    }
+    let (sign, body) = match s.strip_prefix('-') {
+        Some(rest) => (-1.0, rest),
+        None => (1.0, s.strip_prefix('+').unwrap_or(s)),
+    };
+    // `meg` in any case is mega (SPICE habit); check before the one-letter prefixes.
+    let lower = body.to_ascii_lowercase();
+    let body_nounit = strip_unit(body);
+    let lower_nounit = body_nounit.to_ascii_lowercase();
+    for candidate in [lower_nounit.as_str(), lower.as_str()] {
+        if let Some(num) = candidate.strip_suffix("meg") {
+            let v = parse_plain(num).ok_or_else(|| err("the part before `meg` is not a number"))?;
+            return finish(sign * v * 1e6, &err);
+        }
+        if let Some(pos) = candidate.find("meg") {
+            // letter-as-decimal-point: 1meg5 = 1.5e6
+            let (a, b) = (&candidate[..pos], &candidate[pos + 3..]);
+            if let Some(v) = join_digits(a, b) {
+                return finish(sign * v * 1e6, &err);
+            }
+            return Err(err("misplaced `meg`"));
+        }
+    }
+    if let Some(v) = parse_plain(body_nounit) {
+        return finish(sign * v, &err);
+    }
+    // Find the single prefix letter.
+    let letters: Vec<(usize, char)> = body_nounit
+        .char_indices()
+        .filter(|(_, c)| c.is_alphabetic() && !matches!(c, 'e' | 'E'))
+        .collect();
+    let [(pos, c)] = letters.as_slice() else {
+        return Err(err(if letters.is_empty() {
+            "not a number"
+        } else {
+            "more than one scale letter"
+        }));
+    };
+    let mult = prefix_multiplier(*c).ok_or_else(|| err(&format!("unknown scale letter `{c}`")))?;
+    let head = &body_nounit[..*pos];
+    let tail = &body_nounit[pos + c.len_utf8()..];
+    let v = if tail.is_empty() {
+        parse_plain(head).ok_or_else(|| err("the part before the scale letter is not a number"))?
+    } else {
+        join_digits(head, tail)
+            .ok_or_else(|| err("digits expected on both sides of the scale letter"))?
+    };
+    finish(sign * v * mult, &err)
+}
+
+fn finish(v: f64, err: &dyn Fn(&str) -> ParseValueError) -> Result<f64, ParseValueError> {
+    if v.is_finite() {
+        Ok(v)
+    } else {
+        Err(err("not finite"))
+    }
+}
+
+/// A plain decimal or scientific number, no letters other than one exponent.
+fn parse_plain(s: &str) -> Option<f64> {
+    if s.is_empty()
+        || !s
+            .chars()
+            .all(|c| c.is_ascii_digit() || matches!(c, '.' | 'e' | 'E' | '-' | '+'))
+    {
+        return None;
+    }
+    if s.starts_with(['e', 'E', '+', '-']) {
+        return None;
+    }
+    s.parse::<f64>().ok()
+}
+
+/// `4` and `7` around a scale letter mean 4.7; both sides must be plain digits.
+fn join_digits(head: &str, tail: &str) -> Option<f64> {
+    let digits = |x: &str| !x.is_empty() && x.chars().all(|c| c.is_ascii_digit());
+    if !digits(head) || !digits(tail) {
+        return None;
+    }
+    format!("{head}.{tail}").parse::<f64>().ok()
+}
+
+/// Print a value the way engineers write it: three significant figures at
+/// most, an SI prefix, no trailing zeros (`4.7k`, `2.2M`, `150`, `100n`).
+///
+/// Mega is `M` and milli is `m`, matching [`parse_value`], so the output can
+/// be read back. Zero prints as `0`.
+///
+/// ```
+/// use gatewright::units::format_value;
+/// assert_eq!(format_value(4700.0), "4.7k");
+/// assert_eq!(format_value(2.2e6), "2.2M");
+/// assert_eq!(format_value(150.0), "150");
+/// assert_eq!(format_value(1.0e-7), "100n");
+/// ```
+pub fn format_value(v: f64) -> String {
+    format_sig(v, 3)
+}
+
+/// As [`format_value`] with `sig` significant figures (1 to 9).
+pub fn format_sig(v: f64, sig: usize) -> String {
+    if !v.is_finite() {
+        return "n/a".to_string();
+    }
+    if v == 0.0 {
+        return "0".to_string();
+    }
+    let sig = sig.clamp(1, 9);
+    const PREFIXES: [(f64, &str); 9] = [
+        (1e12, "T"),
+        (1e9, "G"),
+        (1e6, "M"),
+        (1e3, "k"),
+        (1.0, ""),
+        (1e-3, "m"),
+        (1e-6, "u"),
+        (1e-9, "n"),
+        (1e-12, "p"),
+    ];
+    // Round to `sig` figures first so 999.99 becomes 1k rather than 1000.
+    let rounded = round_sig(v, sig);
+    let mag = rounded.abs();
+    let (scale, prefix) = PREFIXES
+        .iter()
+        .copied()
+        .find(|(s, _)| mag >= *s * (1.0 - 1e-12))
+        .unwrap_or((1e-15, "f"));
+    let scaled = rounded / scale;
+    let int_digits = if scaled.abs() >= 1.0 {
+        scaled.abs().log10().floor() as usize + 1
+    } else {
+        1
+    };
+    let decimals = sig.saturating_sub(int_digits);
+    let mut text = format!("{scaled:.decimals$}");
+    if text.contains('.') {
+        while text.ends_with('0') {
+            text.pop();
+        }
+        if text.ends_with('.') {
+            text.pop();
+        }
+    }
+    format!("{text}{prefix}")
+}
+
+/// Round to `sig` significant figures.
+pub fn round_sig(v: f64, sig: usize) -> f64 {
+    if v == 0.0 || !v.is_finite() {
+        return v;
+    }
+    let exp = v.abs().log10().floor() as i32;
+    let factor = 10f64.powi(sig as i32 - 1 - exp);
+    (v * factor).round() / factor
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Engineering notation as written on schematics: common practice.
+    #[test]
+    fn parses_engineering_notation() {
+        let cases = [
+            ("4k7", 4700.0),
+            ("2.2M", 2.2e6),
+            ("2M2", 2.2e6),
+            ("470", 470.0),
+            ("100n", 100e-9),
+            ("15m", 15e-3),
+            ("10meg", 10e6),
+            ("10MEG", 10e6),
+            ("1.5e3", 1500.0),
+            ("-3.5", -3.5),
+            ("4R7", 4.7),
+            ("1k", 1000.0),
+            ("22k", 22000.0),
+            ("0.5", 0.5),
+            ("3.3kohm", 3300.0),
+            ("10uF", 10e-6),
+            ("1meg5", 1.5e6),
+        ];
+        for (text, want) in cases {
+            let got = parse_value(text).unwrap();
+            assert!(
+                ((got - want) / want).abs() < 1e-12,
+                "{text}: got {got}, want {want}"
+            );
+        }
+    }
+
+    #[test]
+    fn rejects_garbage_and_quotes_it() {
+        for text in [
+            "", "abc", "4k7k", "k", "1..2", "4x7", "1e999", "nan", "inf", "--1", "e5",
+        ] {
+            let e = parse_value(text).unwrap_err();
+            assert!(e.to_string().contains(&format!("`{text}`")), "{e}");
+        }
+    }
+
+    #[test]
+    fn prints_like_an_engineer() {
+        let cases = [
+            (4700.0, "4.7k"),
+            (2.2e6, "2.2M"),
+            (150.0, "150"),
+            (1e-7, "100n"),
+            (0.015, "15m"),
+            (999.99, "1k"),
+            (1e7, "10M"),
+            (-2.5, "-2.5"),
+            (0.0, "0"),
+            (3.3e-6, "3.3u"),
+        ];
+        for (v, want) in cases {
+            assert_eq!(format_value(v), want, "{v}");
+        }
+    }
+
+    #[test]
+    fn printed_values_read_back() {
+        for v in [4.7e3, 2.2e6, 150.0, 1e-7, 0.015, 12.0, 8.2e-12] {
+            let back = parse_value(&format_value(v)).unwrap();
+            assert!(((back - v) / v).abs() < 1e-12);
+        }
+    }
+}

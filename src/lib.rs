@@ -16,6 +16,7 @@
 
 #![forbid(unsafe_code)]
 
+pub mod analysis;
 pub mod catalog;
 pub mod cli;
 pub mod device;

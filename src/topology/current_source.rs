@@ -4,7 +4,7 @@
 //! Needs `vss < 0`.
 
 use super::common::{cs_bypassed, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal};
-use super::{BiasNetwork, Gate, OpPoint, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -20,6 +20,9 @@ impl Topology for CurrentSource {
     }
     fn parts(&self) -> &'static [&'static str] {
         &["RG", "RS", "RD"]
+    }
+    fn roles(&self) -> &'static [Role] {
+        &[Role::Gate, Role::Source, Role::Drain]
     }
     fn families(&self) -> &'static [Family] {
         &Family::ALL

@@ -4,7 +4,7 @@
 use super::common::{
     cs_bypassed, divider_tap, par, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
 };
-use super::{BiasNetwork, Gate, OpPoint, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -20,6 +20,9 @@ impl Topology for Divider {
     }
     fn parts(&self) -> &'static [&'static str] {
         &["R1", "R2", "RS", "RD"]
+    }
+    fn roles(&self) -> &'static [Role] {
+        &[Role::DivTop, Role::DivBottom, Role::Source, Role::Drain]
     }
     fn families(&self) -> &'static [Family] {
         &Family::ALL

@@ -6,7 +6,7 @@ use super::common::{
     cs_degenerated, divider_tap, par, CapRole, Frame, NetlistInput, Rails, SignalContext,
     SmallSignal,
 };
-use super::{BiasNetwork, Gate, OpPoint, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -22,6 +22,9 @@ impl Topology for DividerSplit {
     }
     fn parts(&self) -> &'static [&'static str] {
         &["R1", "R2", "RS1", "RS2", "RD"]
+    }
+    fn roles(&self) -> &'static [Role] {
+        &[Role::DivTop, Role::DivBottom, Role::Source, Role::Source, Role::Drain]
     }
     fn families(&self) -> &'static [Family] {
         &Family::ALL

@@ -3,7 +3,7 @@
 //! the signal sees RF as a Miller feedback resistor.
 
 use super::common::{par, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal};
-use super::{BiasNetwork, Gate, OpPoint, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -19,6 +19,9 @@ impl Topology for DrainFeedback {
     }
     fn parts(&self) -> &'static [&'static str] {
         &["RF", "RD"]
+    }
+    fn roles(&self) -> &'static [Role] {
+        &[Role::Feedback, Role::Drain]
     }
     fn families(&self) -> &'static [Family] {
         &[Family::NEnhancementMosfet]

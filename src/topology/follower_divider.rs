@@ -3,7 +3,7 @@
 use super::common::{
     divider_tap, follower, par, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
 };
-use super::{BiasNetwork, Gate, OpPoint, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -19,6 +19,9 @@ impl Topology for FollowerDivider {
     }
     fn parts(&self) -> &'static [&'static str] {
         &["R1", "R2", "RS"]
+    }
+    fn roles(&self) -> &'static [Role] {
+        &[Role::DivTop, Role::DivBottom, Role::Source]
     }
     fn families(&self) -> &'static [Family] {
         &Family::ALL

@@ -2,7 +2,7 @@
 //! RG, RS to ground; output at the source.
 
 use super::common::{follower, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal};
-use super::{BiasNetwork, Gate, OpPoint, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -18,6 +18,9 @@ impl Topology for FollowerSelf {
     }
     fn parts(&self) -> &'static [&'static str] {
         &["RG", "RS"]
+    }
+    fn roles(&self) -> &'static [Role] {
+        &[Role::Gate, Role::Source]
     }
     fn families(&self) -> &'static [Family] {
         &[Family::NJfet, Family::NDepletionMosfet]

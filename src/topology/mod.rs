@@ -277,6 +277,24 @@ fn newton_bracketed(law: &SquareLaw, a: f64, b: f64, c: f64, d: f64, start: f64)
     x
 }
 
+/// What a resistor does in its topology; the search enumerates each role
+/// in its own way.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Role {
+    /// Gate return resistor: carries no DC current and sets only Zin.
+    Gate,
+    /// Upper divider resistor (from the more positive rail to the tap).
+    DivTop,
+    /// Lower divider resistor (from the tap to ground or the negative rail).
+    DivBottom,
+    /// In the DC source path (RS, RS1, RS2).
+    Source,
+    /// Drain load RD: does not move the bias when λ = 0 and saturated.
+    Drain,
+    /// Drain-to-gate feedback resistor RF.
+    Feedback,
+}
+
 /// One amplifier topology. Values are passed as a slice in the order of
 /// [`Topology::parts`], in ohms.
 pub trait Topology: Sync {
@@ -286,6 +304,8 @@ pub trait Topology: Sync {
     fn summary(&self) -> &'static str;
     /// Designators of its resistors, in a fixed order.
     fn parts(&self) -> &'static [&'static str];
+    /// Role of each resistor, in [`Topology::parts`] order.
+    fn roles(&self) -> &'static [Role];
     /// Device families it works with.
     fn families(&self) -> &'static [Family];
     /// True when it needs a negative rail (`vss < 0`).

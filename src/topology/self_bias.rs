@@ -2,7 +2,7 @@
 //! bypassed. VGS = −ID·RS.
 
 use super::common::{cs_bypassed, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal};
-use super::{BiasNetwork, Gate, OpPoint, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -18,6 +18,9 @@ impl Topology for SelfBias {
     }
     fn parts(&self) -> &'static [&'static str] {
         &["RG", "RS", "RD"]
+    }
+    fn roles(&self) -> &'static [Role] {
+        &[Role::Gate, Role::Source, Role::Drain]
     }
     fn families(&self) -> &'static [Family] {
         &[Family::NJfet, Family::NDepletionMosfet]

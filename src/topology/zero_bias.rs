@@ -3,7 +3,7 @@
 //! a JFET's gate would sit at the edge of conduction with no margin).
 
 use super::common::{cs_bypassed, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal};
-use super::{BiasNetwork, Gate, OpPoint, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -19,6 +19,9 @@ impl Topology for ZeroBias {
     }
     fn parts(&self) -> &'static [&'static str] {
         &["RG", "RD"]
+    }
+    fn roles(&self) -> &'static [Role] {
+        &[Role::Gate, Role::Drain]
     }
     fn families(&self) -> &'static [Family] {
         &[Family::NDepletionMosfet]

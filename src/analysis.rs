@@ -1,0 +1,380 @@
+//! Forward analysis: one topology with given resistor values, evaluated at
+//! every device corner and at every resistor-tolerance (and supply-tolerance)
+//! extreme, then checked against the specification.
+//!
+//! This is the exact evaluation every other part of the tool relies on: the
+//! search prunes with cheaper bounds, but no design is reported unless this
+//! module finds it feasible.
+
+use crate::device::{Corner, Device};
+use crate::netlist::FetKind;
+use crate::spec::{Polarity, ValidSpec};
+use crate::topology::{evaluate, Evaluation, Rails, Topology};
+use serde::Serialize;
+use std::collections::BTreeMap;
+
+/// Relative slack for inclusive bounds (DESIGN §2: about 1e-9, never more).
+pub const SLACK: f64 = 1e-9;
+
+/// Everything the evaluation needs from a specification, prepared once.
+#[derive(Debug, Clone)]
+pub struct Problem {
+    /// The checked specification.
+    pub spec: ValidSpec,
+    /// Device corners (all 2^n min/max combinations).
+    pub corners: Vec<Corner>,
+    /// The nominal device.
+    pub nominal: Corner,
+    /// Nominal rails.
+    pub rails: Rails,
+    /// SPICE device kind of the family.
+    pub kind: FetKind,
+}
+
+impl Problem {
+    /// Prepare a problem from a checked specification.
+    pub fn new(spec: &ValidSpec) -> Problem {
+        let d: &Device = &spec.device;
+        Problem {
+            corners: d.corners(),
+            nominal: d.nominal(),
+            rails: Rails {
+                vdd_v: spec.supply.vdd_v,
+                vss_v: spec.supply.vss_v,
+            },
+            kind: if d.family.is_jfet() {
+                FetKind::NJfet
+            } else {
+                FetKind::NMos
+            },
+            spec: spec.clone(),
+        }
+    }
+
+    /// Supply-rail extremes: nominal only, or both ends of the supply
+    /// tolerance (both rails move together in magnitude).
+    pub fn rail_extremes(&self) -> Vec<Rails> {
+        let t = self.spec.supply.tolerance;
+        if t == 0.0 {
+            return vec![self.rails];
+        }
+        let ends = [1.0 - t, 1.0 + t];
+        let vss_ends: &[f64] = if self.rails.vss_v == 0.0 { &[1.0] } else { &ends };
+        let mut out = Vec::with_capacity(4);
+        for a in ends {
+            for &b in vss_ends {
+                out.push(Rails {
+                    vdd_v: self.rails.vdd_v * a,
+                    vss_v: self.rails.vss_v * b,
+                });
+            }
+        }
+        out
+    }
+}
+
+/// One evaluated point: a device corner with a set of resistor values.
+#[derive(Debug, Clone, Serialize)]
+pub struct Point {
+    /// Corner label (`nominal` or `idss=min vgs_off=max` …).
+    pub label: String,
+    /// Device parameters at the corner, SI units.
+    pub params: BTreeMap<String, f64>,
+    /// Operating point and small-signal results.
+    pub eval: Evaluation,
+    /// Gain from the signal source's EMF with the load, V/V, signed.
+    pub gain: f64,
+    /// Total DC power drawn from the supplies, watts.
+    pub power_w: f64,
+    /// Device dissipation ID·VDS, watts.
+    pub pd_w: f64,
+    /// DC voltage across each resistor, volts, in the topology's part order.
+    pub resistor_v: Vec<f64>,
+    /// Whether VGS respects the gate rating (JFET: junction not forward-biased).
+    pub gate_ok: bool,
+}
+
+/// Evaluate one topology with one set of values at one device law and rails.
+pub fn point(p: &Problem, t: &dyn Topology, values: &[f64], corner: &Corner, rails: &Rails) -> Point {
+    let eval = evaluate(
+        t,
+        values,
+        rails,
+        &corner.law,
+        p.spec.rl_ohm,
+        p.spec.source_resistance_ohm,
+    );
+    let resistor_v = t.resistor_volts(values, rails, &eval.op);
+    let pr: f64 = resistor_v
+        .iter()
+        .zip(values)
+        .filter(|(_, r)| **r > 0.0)
+        .map(|(v, r)| v * v / r)
+        .sum();
+    let pd_w = eval.op.id_a * eval.op.vds_v;
+    Point {
+        label: corner.label.clone(),
+        params: corner.params.clone(),
+        gain: eval.ss.gain_from_source(p.spec.source_resistance_ohm),
+        power_w: pr + pd_w,
+        pd_w,
+        resistor_v,
+        gate_ok: p.spec.device.gate_ok(eval.op.vgs_v),
+        eval,
+    }
+}
+
+/// Envelope of the results over every corner and tolerance extreme.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct WorstCase {
+    /// Smallest |gain|, V/V.
+    pub gain_abs_min: f64,
+    /// Largest |gain|, V/V.
+    pub gain_abs_max: f64,
+    /// Sign of the gain (−1 inverting, +1 non-inverting; 0 if no gain).
+    pub gain_sign: f64,
+    /// Smallest input impedance, ohms.
+    pub zin_min_ohm: f64,
+    /// Largest output impedance, ohms.
+    pub zout_max_ohm: f64,
+    /// Smallest drain current, amps.
+    pub id_min_a: f64,
+    /// Largest drain current, amps.
+    pub id_max_a: f64,
+    /// Smallest VDS, volts.
+    pub vds_min_v: f64,
+    /// Largest VDS, volts.
+    pub vds_max_v: f64,
+    /// Smallest margin VDS − (VGS − vto) to the edge of saturation, volts.
+    pub sat_margin_v: f64,
+    /// Largest supply power, watts.
+    pub power_max_w: f64,
+    /// Largest device dissipation, watts.
+    pub pd_max_w: f64,
+    /// Smallest VGS, volts.
+    pub vgs_min_v: f64,
+    /// Largest VGS, volts.
+    pub vgs_max_v: f64,
+    /// True when every point is saturated.
+    pub saturated: bool,
+    /// True when every point has a valid gate bias.
+    pub gate_ok: bool,
+}
+
+impl WorstCase {
+    fn empty() -> Self {
+        WorstCase {
+            gain_abs_min: f64::INFINITY,
+            gain_abs_max: 0.0,
+            gain_sign: 0.0,
+            zin_min_ohm: f64::INFINITY,
+            zout_max_ohm: 0.0,
+            id_min_a: f64::INFINITY,
+            id_max_a: 0.0,
+            vds_min_v: f64::INFINITY,
+            vds_max_v: f64::NEG_INFINITY,
+            sat_margin_v: f64::INFINITY,
+            power_max_w: 0.0,
+            pd_max_w: 0.0,
+            vgs_min_v: f64::INFINITY,
+            vgs_max_v: f64::NEG_INFINITY,
+            saturated: true,
+            gate_ok: true,
+        }
+    }
+
+    fn add(&mut self, pt: &Point, vto_v: f64) {
+        let op = &pt.eval.op;
+        let g = pt.gain.abs();
+        self.gain_abs_min = self.gain_abs_min.min(g);
+        self.gain_abs_max = self.gain_abs_max.max(g);
+        if self.gain_sign == 0.0 && pt.gain != 0.0 {
+            self.gain_sign = pt.gain.signum();
+        }
+        self.zin_min_ohm = self.zin_min_ohm.min(pt.eval.ss.zin_ohm);
+        self.zout_max_ohm = self.zout_max_ohm.max(pt.eval.ss.zout_ohm);
+        self.id_min_a = self.id_min_a.min(op.id_a);
+        self.id_max_a = self.id_max_a.max(op.id_a);
+        self.vds_min_v = self.vds_min_v.min(op.vds_v);
+        self.vds_max_v = self.vds_max_v.max(op.vds_v);
+        self.sat_margin_v = self.sat_margin_v.min(op.vds_v - (op.vgs_v - vto_v));
+        self.power_max_w = self.power_max_w.max(pt.power_w);
+        self.pd_max_w = self.pd_max_w.max(pt.pd_w);
+        self.vgs_min_v = self.vgs_min_v.min(op.vgs_v);
+        self.vgs_max_v = self.vgs_max_v.max(op.vgs_v);
+        self.saturated &= op.saturated();
+        self.gate_ok &= pt.gate_ok;
+    }
+}
+
+/// Every resistor-tolerance extreme: each nonzero value at (1 − tol) or
+/// (1 + tol). With all tolerances zero there is one, the nominal.
+pub fn tolerance_extremes(values: &[f64], tolerances: &[f64]) -> Vec<Vec<f64>> {
+    let idx: Vec<usize> = (0..values.len())
+        .filter(|&i| values[i] > 0.0 && tolerances.get(i).copied().unwrap_or(0.0) > 0.0)
+        .collect();
+    let mut out = Vec::with_capacity(1 << idx.len());
+    for mask in 0..(1usize << idx.len()) {
+        let mut v = values.to_vec();
+        for (bit, &i) in idx.iter().enumerate() {
+            let t = tolerances[i];
+            v[i] *= if mask & (1 << bit) != 0 { 1.0 + t } else { 1.0 - t };
+        }
+        out.push(v);
+    }
+    out
+}
+
+/// The worst case over every device corner, resistor-tolerance extreme and
+/// supply extreme (extreme-value analysis).
+pub fn worst_case(p: &Problem, t: &dyn Topology, values: &[f64], tolerances: &[f64]) -> WorstCase {
+    let mut wc = WorstCase::empty();
+    let rails = p.rail_extremes();
+    for v in tolerance_extremes(values, tolerances) {
+        for r in &rails {
+            for c in &p.corners {
+                let pt = point(p, t, &v, c, r);
+                wc.add(&pt, c.law.vto_v);
+            }
+        }
+    }
+    wc
+}
+
+/// The worst case at nominal resistor values and rails, over device corners
+/// only (a necessary condition for feasibility, cheaper than [`worst_case`]).
+pub fn corners_only(p: &Problem, t: &dyn Topology, values: &[f64]) -> WorstCase {
+    let mut wc = WorstCase::empty();
+    for c in &p.corners {
+        let pt = point(p, t, values, c, &p.rails);
+        wc.add(&pt, c.law.vto_v);
+    }
+    wc
+}
+
+/// One requirement, checked.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Check {
+    /// Requirement id: `gain`, `polarity`, `zin_min`, `vds_min`,
+    /// `saturation`, `gate_bias`, `id_max`, `power_max`, `zout_max`,
+    /// `vds_max`, `pd_max`.
+    pub name: &'static str,
+    /// What is required, in words with numbers.
+    pub required: String,
+    /// What the design reaches, in words with numbers.
+    pub achieved: String,
+    /// Signed margin normalised to the requirement (>= 0 passes): a
+    /// fraction of the target or limit, or of the supply span for voltages.
+    pub margin: f64,
+    /// True when the requirement holds (with the inclusive slack).
+    pub pass: bool,
+}
+
+fn fmt(v: f64, unit: &str) -> String {
+    format!("{}{unit}", crate::units::format_sig(v, 4))
+}
+
+/// The gain window `[lo, hi]` of |gain|, V/V.
+pub fn gain_window(spec: &ValidSpec) -> (f64, f64) {
+    let g = spec.target.gain;
+    (g * (1.0 - spec.target.tolerance), g * (1.0 + spec.target.tolerance))
+}
+
+/// Check the worst case against every requirement of the specification.
+pub fn assess(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> Vec<Check> {
+    let s = &p.spec;
+    let span = s.supply.vdd_v - s.supply.vss_v;
+    let (lo, hi) = gain_window(s);
+    let g = s.target.gain;
+    let mut out = Vec::new();
+    let gm = ((wc.gain_abs_min - lo) / g).min((hi - wc.gain_abs_max) / g);
+    out.push(Check {
+        name: "gain",
+        required: format!("|gain| in {}..{}", fmt(lo, ""), fmt(hi, "")),
+        achieved: format!("{}..{}", fmt(wc.gain_abs_min, ""), fmt(wc.gain_abs_max, "")),
+        margin: gm,
+        pass: wc.gain_abs_min >= lo * (1.0 - SLACK) && wc.gain_abs_max <= hi * (1.0 + SLACK),
+    });
+    let want_sign = match s.target.polarity {
+        Polarity::Inverting => Some(-1.0),
+        Polarity::NonInverting => Some(1.0),
+        Polarity::Any => None,
+    };
+    if let Some(sign) = want_sign {
+        let got = if t.non_inverting() { 1.0 } else { -1.0 };
+        out.push(Check {
+            name: "polarity",
+            required: if sign < 0.0 { "inverting" } else { "non-inverting" }.to_string(),
+            achieved: if got < 0.0 { "inverting" } else { "non-inverting" }.to_string(),
+            margin: if got == sign { 0.0 } else { -1.0 },
+            pass: got == sign,
+        });
+    }
+    out.push(Check {
+        name: "zin_min",
+        required: format!("Zin >= {}", fmt(s.zin_min_ohm, "Ω")),
+        achieved: fmt(wc.zin_min_ohm, "Ω"),
+        margin: wc.zin_min_ohm / s.zin_min_ohm - 1.0,
+        pass: wc.zin_min_ohm >= s.zin_min_ohm * (1.0 - SLACK),
+    });
+    out.push(Check {
+        name: "vds_min",
+        required: format!("VDS >= {}", fmt(s.vds_min_v, "V")),
+        achieved: fmt(wc.vds_min_v, "V"),
+        margin: (wc.vds_min_v - s.vds_min_v) / span,
+        pass: wc.vds_min_v >= s.vds_min_v - SLACK * span,
+    });
+    out.push(Check {
+        name: "saturation",
+        required: "VDS >= VGS - VGS(off)/VT at every corner".to_string(),
+        achieved: format!("worst margin {}", fmt(wc.sat_margin_v, "V")),
+        margin: wc.sat_margin_v / span,
+        pass: wc.saturated && wc.id_min_a > 0.0,
+    });
+    let d = &s.device;
+    let gate_req = match (d.vgs_min_v, d.vgs_max_v) {
+        (Some(a), Some(b)) => format!("{} <= VGS <= {}", fmt(a, "V"), fmt(b, "V")),
+        (None, Some(b)) => format!("VGS <= {}", fmt(b, "V")),
+        (Some(a), None) => format!("VGS >= {}", fmt(a, "V")),
+        (None, None) => "no gate rating given".to_string(),
+    };
+    let gate_margin = {
+        let hi = d.vgs_max_v.map_or(f64::INFINITY, |m| m - wc.vgs_max_v);
+        let lo = d.vgs_min_v.map_or(f64::INFINITY, |m| wc.vgs_min_v - m);
+        let m = hi.min(lo);
+        if m.is_finite() {
+            m / span
+        } else {
+            1.0
+        }
+    };
+    out.push(Check {
+        name: "gate_bias",
+        required: gate_req,
+        achieved: format!("VGS {}..{}", fmt(wc.vgs_min_v, "V"), fmt(wc.vgs_max_v, "V")),
+        margin: gate_margin,
+        pass: wc.gate_ok,
+    });
+    let limit = |name: &'static str, lim: Option<f64>, got: f64, unit: &str, out: &mut Vec<Check>| {
+        if let Some(l) = lim {
+            out.push(Check {
+                name,
+                required: format!("<= {}", fmt(l, unit)),
+                achieved: fmt(got, unit),
+                margin: 1.0 - got / l,
+                pass: got <= l * (1.0 + SLACK),
+            });
+        }
+    };
+    limit("id_max", s.limits.id_max_a, wc.id_max_a, "A", &mut out);
+    limit("power_max", s.limits.power_max_w, wc.power_max_w, "W", &mut out);
+    limit("zout_max", s.limits.zout_max_ohm, wc.zout_max_ohm, "Ω", &mut out);
+    limit("vds_max", d.vds_max_v, wc.vds_max_v, "V", &mut out);
+    limit("pd_max", d.pd_max_w, wc.pd_max_w, "W", &mut out);
+    out
+}
+
+/// True when every check passes.
+pub fn feasible(checks: &[Check]) -> bool {
+    checks.iter().all(|c| c.pass)
+}

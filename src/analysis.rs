@@ -162,7 +162,8 @@ pub struct WorstCase {
 }
 
 impl WorstCase {
-    fn empty() -> Self {
+    /// The envelope of no points (identity for [`WorstCase::add`]).
+    pub fn empty() -> Self {
         WorstCase {
             gain_abs_min: f64::INFINITY,
             gain_abs_max: 0.0,
@@ -183,7 +184,8 @@ impl WorstCase {
         }
     }
 
-    fn add(&mut self, pt: &Point, vto_v: f64) {
+    /// Widen the envelope by one point evaluated with threshold `vto_v`.
+    pub fn add(&mut self, pt: &Point, vto_v: f64) {
         let op = &pt.eval.op;
         let g = pt.gain.abs();
         self.gain_abs_min = self.gain_abs_min.min(g);

@@ -21,6 +21,8 @@ pub mod catalog;
 pub mod cli;
 pub mod device;
 pub mod netlist;
+pub mod rank;
+pub mod search;
 pub mod spec;
 pub mod topology;
 pub mod units;

@@ -30,6 +30,9 @@ impl Topology for CommonGate {
     fn non_inverting(&self) -> bool {
         true
     }
+    fn input_at_source(&self) -> bool {
+        true
+    }
     fn bias(&self, v: &[f64], rails: &Rails) -> BiasNetwork {
         BiasNetwork {
             gate: Gate::Fixed(divider_tap(v[0], v[1], rails.vdd_v, 0.0)),

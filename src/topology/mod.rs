@@ -316,6 +316,11 @@ pub trait Topology: Sync {
     fn non_inverting(&self) -> bool {
         false
     }
+    /// True when the signal enters at the source (common gate), so the gate
+    /// divider plays no part in Zin.
+    fn input_at_source(&self) -> bool {
+        false
+    }
     /// Whether the resistor at `index` may be 0 Ω (a wire) for this family.
     fn may_be_zero(&self, _index: usize, _family: Family) -> bool {
         false

@@ -1,0 +1,185 @@
+//! Ranking: the trade-off metrics of a feasible design, its score, the
+//! Pareto filter and a total, deterministic order.
+//!
+//! Score (higher is better, 0 to 1) is a weighted mean of six terms, each
+//! in [0, 1]:
+//!
+//! | term | formula | meaning |
+//! |---|---|---|
+//! | accuracy | 1 − gain_error / tolerance | worst-corner distance from the target gain |
+//! | spread | 1 − (max − min)|gain| / (2·tolerance·gain) | how much of the window the spread uses |
+//! | headroom | min(1, (VDS_min − vds_min) / (0.25·supply span)) | spare drain–source voltage |
+//! | power | 1 / (1 + P / P_ref), P_ref = power_max or span·1 mA | supply power |
+//! | zin | min(1, log10(Zin / zin_min)) | input-impedance margin, full credit at 10× |
+//! | parts | clamp((9 − parts) / 5, 0, 1) | resistors plus capacitors |
+//!
+//! Default weights: accuracy 2, spread 2, headroom 1, power 1, zin 1,
+//! parts 1. `--prefer` multiplies one group by 4: `accurate` (accuracy),
+//! `robust` (spread and headroom), `low-power` (power), `few-parts` (parts).
+//! The scale constants (25 % of the span, 1 mA, 10×) are common-practice
+//! normalisations, chosen so that no single term dominates by default.
+
+use crate::analysis::WorstCase;
+use crate::spec::ValidSpec;
+use serde::Serialize;
+use std::cmp::Ordering;
+
+/// What the user wants favoured.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Prefer {
+    /// The default balance.
+    #[default]
+    Balanced,
+    /// Small gain spread and ample headroom.
+    Robust,
+    /// Low supply power.
+    LowPower,
+    /// Few parts.
+    FewParts,
+    /// Gain closest to the target at the worst corner.
+    Accurate,
+}
+
+/// Trade-off metrics of one feasible design (worst case).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Metrics {
+    /// Largest relative distance of |gain| from the target, fraction.
+    pub gain_error: f64,
+    /// (max − min)|gain| / target, fraction.
+    pub gain_spread: f64,
+    /// Smallest VDS minus vds_min, volts.
+    pub headroom_v: f64,
+    /// Largest drain current, amps.
+    pub id_max_a: f64,
+    /// Largest supply power, watts.
+    pub power_w: f64,
+    /// Smallest Zin over zin_min, ratio.
+    pub zin_ratio: f64,
+    /// Resistors (nonzero) plus capacitors.
+    pub parts: usize,
+}
+
+impl Metrics {
+    /// Metrics from a worst case.
+    pub fn new(spec: &ValidSpec, wc: &WorstCase, parts: usize) -> Metrics {
+        let g = spec.target.gain;
+        Metrics {
+            gain_error: ((wc.gain_abs_min - g).abs().max((wc.gain_abs_max - g).abs())) / g,
+            gain_spread: (wc.gain_abs_max - wc.gain_abs_min) / g,
+            headroom_v: wc.vds_min_v - spec.vds_min_v,
+            id_max_a: wc.id_max_a,
+            power_w: wc.power_max_w,
+            zin_ratio: wc.zin_min_ohm / spec.zin_min_ohm,
+            parts,
+        }
+    }
+
+    /// True when `self` is at least as good as `o` everywhere and better
+    /// somewhere.
+    pub fn dominates(&self, o: &Metrics) -> bool {
+        let le = [
+            self.gain_error <= o.gain_error,
+            self.gain_spread <= o.gain_spread,
+            self.headroom_v >= o.headroom_v,
+            self.id_max_a <= o.id_max_a,
+            self.power_w <= o.power_w,
+            self.zin_ratio >= o.zin_ratio,
+            self.parts <= o.parts,
+        ];
+        let lt = [
+            self.gain_error < o.gain_error,
+            self.gain_spread < o.gain_spread,
+            self.headroom_v > o.headroom_v,
+            self.id_max_a < o.id_max_a,
+            self.power_w < o.power_w,
+            self.zin_ratio > o.zin_ratio,
+            self.parts < o.parts,
+        ];
+        le.iter().all(|&b| b) && lt.iter().any(|&b| b)
+    }
+}
+
+/// The score of a design, 0 (worst) to 1 (best).
+pub fn score(spec: &ValidSpec, m: &Metrics, prefer: Prefer) -> f64 {
+    let tol = spec.target.tolerance;
+    let span = spec.supply.vdd_v - spec.supply.vss_v;
+    let p_ref = spec.limits.power_max_w.unwrap_or(span * 1e-3);
+    let clamp = |x: f64| x.clamp(0.0, 1.0);
+    let terms = [
+        clamp(1.0 - m.gain_error / tol),
+        clamp(1.0 - m.gain_spread / (2.0 * tol)),
+        clamp(m.headroom_v / (0.25 * span)),
+        clamp(1.0 / (1.0 + m.power_w / p_ref)),
+        clamp(m.zin_ratio.log10()),
+        clamp((9.0 - m.parts as f64) / 5.0),
+    ];
+    let mut w = [2.0, 2.0, 1.0, 1.0, 1.0, 1.0];
+    match prefer {
+        Prefer::Balanced => {}
+        Prefer::Accurate => w[0] *= 4.0,
+        Prefer::Robust => {
+            w[1] *= 4.0;
+            w[2] *= 4.0;
+        }
+        Prefer::LowPower => w[3] *= 4.0,
+        Prefer::FewParts => w[5] *= 4.0,
+    }
+    let total: f64 = w.iter().sum();
+    terms.iter().zip(w).map(|(t, w)| t * w).sum::<f64>() / total
+}
+
+/// Total order: higher score first, then topology order, then values
+/// (ascending, designator by designator).
+pub fn order(a: (f64, usize, &[f64]), b: (f64, usize, &[f64])) -> Ordering {
+    b.0.total_cmp(&a.0)
+        .then(a.1.cmp(&b.1))
+        .then_with(|| {
+            for (x, y) in a.2.iter().zip(b.2) {
+                let o = x.total_cmp(y);
+                if o != Ordering::Equal {
+                    return o;
+                }
+            }
+            a.2.len().cmp(&b.2.len())
+        })
+}
+
+/// Indices of the Pareto-optimal entries.
+pub fn pareto(ms: &[Metrics]) -> Vec<usize> {
+    (0..ms.len())
+        .filter(|&i| !ms.iter().any(|o| o.dominates(&ms[i])))
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn m(err: f64, power: f64) -> Metrics {
+        Metrics {
+            gain_error: err,
+            gain_spread: 0.1,
+            headroom_v: 1.0,
+            id_max_a: 1e-3,
+            power_w: power,
+            zin_ratio: 2.0,
+            parts: 5,
+        }
+    }
+
+    #[test]
+    fn pareto_keeps_trade_offs_and_drops_dominated() {
+        let ms = [m(0.05, 0.01), m(0.02, 0.02), m(0.06, 0.02)];
+        assert_eq!(pareto(&ms), vec![0, 1]);
+    }
+
+    #[test]
+    fn order_breaks_ties_by_topology_then_values() {
+        let a = [1.0, 2.0];
+        let b = [1.0, 3.0];
+        assert_eq!(order((0.5, 1, &a), (0.5, 1, &b)), Ordering::Less);
+        assert_eq!(order((0.5, 2, &a), (0.5, 1, &b)), Ordering::Greater);
+        assert_eq!(order((0.6, 2, &b), (0.5, 1, &a)), Ordering::Less);
+    }
+}

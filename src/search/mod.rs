@@ -1,0 +1,398 @@
+//! Synthesis: every topology the device and rails allow, searched over the
+//! resistor shelf, each candidate checked exactly at every device corner and
+//! tolerance extreme, then ranked.
+//!
+//! Two searches share one exact evaluation (`analysis::worst_case`):
+//! - [`smart`] prunes with necessary conditions and monotone structure
+//!   (the RD run, the gate-resistor rule, divider dominance);
+//! - [`exhaustive`] evaluates every combination: the reference that proves
+//!   the fast search right.
+//!
+//! This module prints nothing.
+
+pub mod exhaustive;
+pub mod smart;
+
+use crate::analysis::{assess, feasible, gain_window, worst_case, Check, Problem, WorstCase, SLACK};
+use crate::catalog::Catalog;
+use crate::rank::{order, pareto, score, Metrics, Prefer};
+use crate::spec::ValidSpec;
+use crate::topology::{Topology, TOPOLOGIES};
+use serde::Serialize;
+
+/// The resistor values the search may use, sorted ascending, with the
+/// tolerance of each.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Shelf {
+    /// Name for outputs (`E24`, or the stock list's name).
+    pub name: String,
+    /// Resistances, ohms, ascending.
+    pub values: Vec<f64>,
+    /// Relative tolerance of each value.
+    pub tolerances: Vec<f64>,
+}
+
+impl Shelf {
+    /// The catalog's parts inside `[r_min, r_max]` (inclusive, relative
+    /// slack 1e-9), with every tolerance replaced by `tolerance` when given.
+    pub fn new(cat: &Catalog, tolerance: Option<f64>, r_min_ohm: f64, r_max_ohm: f64) -> Shelf {
+        let parts: Vec<_> = cat
+            .parts
+            .iter()
+            .filter(|p| p.ohms >= r_min_ohm * (1.0 - SLACK) && p.ohms <= r_max_ohm * (1.0 + SLACK))
+            .collect();
+        Shelf {
+            name: cat.name.clone(),
+            values: parts.iter().map(|p| p.ohms).collect(),
+            tolerances: parts.iter().map(|p| tolerance.unwrap_or(p.tolerance)).collect(),
+        }
+    }
+
+    /// Tolerance of a value on the shelf (0 for a 0 Ω link).
+    pub fn tolerance_of(&self, ohms: f64) -> f64 {
+        if ohms == 0.0 {
+            return 0.0;
+        }
+        let i = self.values.partition_point(|&v| v < ohms * (1.0 - 1e-12));
+        self.tolerances.get(i).copied().unwrap_or(0.0)
+    }
+}
+
+/// How thoroughly to search.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Method {
+    /// Pruned search (default).
+    #[default]
+    Smart,
+    /// Every combination over the shelf.
+    Exhaustive,
+}
+
+/// Search options.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Options {
+    /// Check at nominal device and nominal resistor values only.
+    pub nominal_only: bool,
+    /// Ranking preference.
+    pub prefer: Prefer,
+    /// How many designs to return in all.
+    pub top: usize,
+    /// How many designs to keep per topology before the Pareto filter.
+    pub per_topology: usize,
+    /// Which search.
+    pub method: Method,
+    /// Largest number of combinations the exhaustive search accepts.
+    pub budget: f64,
+}
+
+impl Default for Options {
+    fn default() -> Self {
+        Options {
+            nominal_only: false,
+            prefer: Prefer::Balanced,
+            top: 10,
+            per_topology: 10,
+            method: Method::Smart,
+            budget: 1e9,
+        }
+    }
+}
+
+/// A feasible design.
+#[derive(Clone)]
+pub struct Design {
+    /// The topology.
+    pub topology: &'static dyn Topology,
+    /// Position of the topology in the registry (tie-break order).
+    pub topology_index: usize,
+    /// Resistor values, ohms, in the topology's part order (0 = a wire).
+    pub values: Vec<f64>,
+    /// Tolerance of each resistor.
+    pub tolerances: Vec<f64>,
+    /// Worst case over corners and tolerance extremes.
+    pub worst: WorstCase,
+    /// Trade-off metrics.
+    pub metrics: Metrics,
+    /// Score, 0 to 1.
+    pub score: f64,
+}
+
+impl std::fmt::Debug for Design {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Design")
+            .field("topology", &self.topology.id())
+            .field("values", &self.values)
+            .field("score", &self.score)
+            .finish()
+    }
+}
+
+/// Why a topology gave no design.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Rejection {
+    /// Topology id.
+    pub topology: &'static str,
+    /// One sentence.
+    pub reason: String,
+    /// The requirement that bound it.
+    pub binding: String,
+    /// What the closest candidate reached for that requirement.
+    pub best: String,
+}
+
+/// Work done, for the benchmark figures and the note.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize)]
+pub struct Effort {
+    /// Bias configurations (or combinations) visited.
+    pub configurations: u64,
+    /// Corner-only (nominal resistor) evaluations.
+    pub corner_checks: u64,
+    /// Full worst-case evaluations (corners × tolerance extremes).
+    pub exact_checks: u64,
+    /// Combinations an exhaustive search over this shelf would visit.
+    pub exhaustive_combinations: f64,
+}
+
+/// The result of a search.
+#[derive(Debug, Clone)]
+pub struct Outcome {
+    /// Feasible designs, Pareto-optimal, best first, at most `top`.
+    pub designs: Vec<Design>,
+    /// Topologies that gave no design, with the reason.
+    pub rejected: Vec<Rejection>,
+    /// Work done.
+    pub effort: Effort,
+    /// True when only nominal values were checked.
+    pub nominal_only: bool,
+}
+
+/// The search could not run.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum SearchError {
+    /// The exhaustive search would exceed its budget.
+    #[error("the exhaustive search would visit {combinations:.3e} combinations (about {seconds:.0} s), over its budget of {budget:.0e}; use the default search, a narrower `[parts] range`, or a coarser series")]
+    OverBudget {
+        /// Combinations it would visit.
+        combinations: f64,
+        /// Rough time estimate, seconds.
+        seconds: f64,
+        /// The budget.
+        budget: f64,
+    },
+    /// The shelf is empty after applying `[parts] range`.
+    #[error("no resistor value of `{shelf}` lies inside `parts.range` {min}..{max} Ω")]
+    EmptyShelf {
+        /// Shelf name.
+        shelf: String,
+        /// Range minimum, ohms.
+        min: f64,
+        /// Range maximum, ohms.
+        max: f64,
+    },
+}
+
+/// The problem the search evaluates: nominal-only mode keeps the nominal
+/// device as the only corner (resistor tolerances are dropped by the caller).
+pub fn problem_for(spec: &ValidSpec, nominal_only: bool) -> Problem {
+    let mut p = Problem::new(spec);
+    if nominal_only {
+        p.corners = vec![p.nominal.clone()];
+        p.spec.supply.tolerance = 0.0;
+    }
+    p
+}
+
+/// Tracks the closest miss of one topology, for the infeasibility answer.
+#[derive(Debug, Clone, Default)]
+pub(crate) struct MissTracker {
+    best: Option<(f64, Check)>,
+}
+
+impl MissTracker {
+    pub(crate) fn note(&mut self, checks: &[Check]) {
+        let worst = checks
+            .iter()
+            .filter(|c| !c.pass)
+            .min_by(|a, b| a.margin.total_cmp(&b.margin));
+        if let Some(c) = worst {
+            let v = -c.margin;
+            if self.best.as_ref().is_none_or(|(b, _)| v < *b) {
+                self.best = Some((v, c.clone()));
+            }
+        }
+    }
+
+    fn rejection(&self, t: &dyn Topology, fallback: &str) -> Rejection {
+        match &self.best {
+            Some((_, c)) => Rejection {
+                topology: t.id(),
+                reason: format!("{}: needs {}, the closest candidate reached {}", c.name, c.required, c.achieved),
+                binding: c.name.to_string(),
+                best: c.achieved.clone(),
+            },
+            None => Rejection {
+                topology: t.id(),
+                reason: fallback.to_string(),
+                binding: "parts.range".to_string(),
+                best: "no candidate".to_string(),
+            },
+        }
+    }
+}
+
+/// Collects the feasible designs of one topology.
+pub(crate) struct Collector<'a> {
+    pub(crate) p: &'a Problem,
+    pub(crate) t: &'static dyn Topology,
+    pub(crate) index: usize,
+    pub(crate) prefer: Prefer,
+    pub(crate) designs: Vec<Design>,
+    pub(crate) miss: MissTracker,
+    pub(crate) effort: Effort,
+}
+
+impl<'a> Collector<'a> {
+    /// Exact check of one candidate; keeps it when feasible.
+    pub(crate) fn exact(&mut self, values: &[f64], tolerances: &[f64]) -> bool {
+        self.effort.exact_checks += 1;
+        let wc = worst_case(self.p, self.t, values, tolerances);
+        let checks = assess(self.p, self.t, &wc);
+        if !feasible(&checks) {
+            self.miss.note(&checks);
+            return false;
+        }
+        let parts = values.iter().filter(|v| **v > 0.0).count() + self.t.capacitors(values).len();
+        let metrics = Metrics::new(&self.p.spec, &wc, parts);
+        let score = score(&self.p.spec, &metrics, self.prefer);
+        self.designs.push(Design {
+            topology: self.t,
+            topology_index: self.index,
+            values: values.to_vec(),
+            tolerances: tolerances.to_vec(),
+            worst: wc,
+            metrics,
+            score,
+        });
+        true
+    }
+}
+
+/// Structural reasons a topology cannot work, before any search.
+fn structural(p: &Problem, t: &dyn Topology) -> Option<Rejection> {
+    let s = &p.spec;
+    let rej = |binding: &str, reason: String, best: &str| Rejection {
+        topology: t.id(),
+        reason,
+        binding: binding.to_string(),
+        best: best.to_string(),
+    };
+    if !t.supports(s.device.family) {
+        return Some(rej(
+            "device.family",
+            format!("{}: not a topology for a {}", t.id(), s.device.family.id()),
+            "n/a",
+        ));
+    }
+    if t.needs_vss() && s.supply.vss_v >= 0.0 {
+        return Some(rej(
+            "supply.vss",
+            format!("{}: needs a negative rail (supply.vss < 0)", t.id()),
+            "vss = 0",
+        ));
+    }
+    use crate::spec::Polarity;
+    match (s.target.polarity, t.non_inverting()) {
+        (Polarity::Inverting, true) => {
+            return Some(rej("polarity", format!("{}: non-inverting by construction", t.id()), "non-inverting"))
+        }
+        (Polarity::NonInverting, false) => {
+            return Some(rej("polarity", format!("{}: inverting by construction", t.id()), "inverting"))
+        }
+        _ => {}
+    }
+    let (lo, _) = gain_window(s);
+    let follower = t.roles().iter().all(|r| !matches!(r, crate::topology::Role::Drain | crate::topology::Role::Feedback));
+    if follower && lo >= 1.0 {
+        return Some(rej(
+            "gain",
+            format!("{}: |gain| < 1 by construction (a follower), the target needs at least {}", t.id(), crate::units::format_sig(lo, 4)),
+            "< 1",
+        ));
+    }
+    None
+}
+
+/// Run the search.
+pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, SearchError> {
+    if shelf.values.is_empty() {
+        return Err(SearchError::EmptyShelf {
+            shelf: shelf.name.clone(),
+            min: spec.parts.r_min_ohm,
+            max: spec.parts.r_max_ohm,
+        });
+    }
+    let p = problem_for(spec, opts.nominal_only);
+    let shelf = if opts.nominal_only {
+        Shelf {
+            tolerances: vec![0.0; shelf.values.len()],
+            ..shelf.clone()
+        }
+    } else {
+        shelf.clone()
+    };
+    let mut effort = Effort {
+        exhaustive_combinations: exhaustive::combinations(&p, &shelf),
+        ..Effort::default()
+    };
+    if opts.method == Method::Exhaustive && effort.exhaustive_combinations > opts.budget {
+        return Err(SearchError::OverBudget {
+            combinations: effort.exhaustive_combinations,
+            seconds: effort.exhaustive_combinations * 2e-7,
+            budget: opts.budget,
+        });
+    }
+    let mut all = Vec::new();
+    let mut rejected = Vec::new();
+    for (index, &t) in TOPOLOGIES.iter().enumerate() {
+        if let Some(r) = structural(&p, t) {
+            rejected.push(r);
+            continue;
+        }
+        let mut col = Collector {
+            p: &p,
+            t,
+            index,
+            prefer: opts.prefer,
+            designs: Vec::new(),
+            miss: MissTracker::default(),
+            effort: Effort::default(),
+        };
+        match opts.method {
+            Method::Smart => smart::search(&mut col, &shelf),
+            Method::Exhaustive => exhaustive::search(&mut col, &shelf),
+        }
+        effort.configurations += col.effort.configurations;
+        effort.corner_checks += col.effort.corner_checks;
+        effort.exact_checks += col.effort.exact_checks;
+        if col.designs.is_empty() {
+            rejected.push(col.miss.rejection(t, &format!("{}: no bias network inside parts.range keeps the device on and saturated", t.id())));
+            continue;
+        }
+        col.designs
+            .sort_by(|a, b| order((a.score, a.topology_index, &a.values), (b.score, b.topology_index, &b.values)));
+        col.designs.truncate(opts.per_topology.max(opts.top).max(1));
+        all.extend(col.designs);
+    }
+    let ms: Vec<Metrics> = all.iter().map(|d| d.metrics).collect();
+    let keep = pareto(&ms);
+    let mut designs: Vec<Design> = keep.into_iter().map(|i| all[i].clone()).collect();
+    designs.sort_by(|a, b| order((a.score, a.topology_index, &a.values), (b.score, b.topology_index, &b.values)));
+    designs.truncate(opts.top);
+    Ok(Outcome {
+        designs,
+        rejected,
+        effort,
+        nominal_only: opts.nominal_only,
+    })
+}

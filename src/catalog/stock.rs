@@ -146,7 +146,8 @@ pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
         CatalogError::Syntax {
             line,
             column,
-            message: e.message().trim().to_string(),
+            // One line per error, for terminals and JSON alike.
+            message: e.message().trim().replace('\n', "; "),
         }
     })?;
     let r = Reader { text };
@@ -235,4 +236,148 @@ pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
         name,
         parts: parts.into_iter().map(|(p, ..)| p).collect(),
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn err(text: &str) -> String {
+        parse(text).unwrap_err().to_string()
+    }
+
+    #[test]
+    fn shipped_example_parses_sorted() {
+        let c = parse(include_str!("../../catalogs/stock-example.toml")).unwrap();
+        assert_eq!(c.name, "bench drawer");
+        assert_eq!(c.parts.len(), 31);
+        assert!(c.parts.windows(2).all(|w| w[0].ohms < w[1].ohms));
+    }
+
+    // Engineering notation as written on schematics: common practice.
+    #[test]
+    fn reads_numbers_text_defaults_and_overrides() {
+        let c = parse(
+            "name = \"drawer\"\ntolerance = 0.05\npower = \"250m\"\n\
+             [[part]]\nvalue = \"4k7\"\n\
+             [[part]]\nvalue = 470\ntolerance = 0.01\npower = 0.5\n\
+             [[part]]\nvalue = 2.2e6\ntolerance = 0\n",
+        )
+        .unwrap();
+        let got: Vec<(f64, f64, Option<f64>)> = c
+            .parts
+            .iter()
+            .map(|p| (p.ohms, p.tolerance, p.power_w))
+            .collect();
+        assert_eq!(
+            got,
+            [
+                (470.0, 0.01, Some(0.5)),
+                (4700.0, 0.05, Some(0.25)),
+                (2.2e6, 0.0, Some(0.25)),
+            ]
+        );
+        let c = parse("[[part]]\nvalue = 10\ntolerance = 0.1\n").unwrap();
+        assert_eq!(c.name, "stock");
+        assert_eq!(c.parts[0].power_w, None);
+    }
+
+    #[test]
+    fn rejects_bad_values_with_line_field_and_rule() {
+        let head = "tolerance = 0.05\n[[part]]\nvalue = 100\n[[part]]\n";
+        assert_eq!(
+            err(&format!("{head}value = \"-4k7\"\n")),
+            "line 5: `part[2].value` = \"-4k7\": must be a finite number greater than 0 ohms"
+        );
+        assert_eq!(
+            err(&format!("{head}value = 0\n")),
+            "line 5: `part[2].value` = 0: must be a finite number greater than 0 ohms"
+        );
+        assert_eq!(
+            err(&format!("{head}value = nan\n")),
+            "line 5: `part[2].value` = nan: must be a finite number greater than 0 ohms"
+        );
+        assert_eq!(
+            err(&format!("{head}value = inf\n")),
+            "line 5: `part[2].value` = inf: must be a finite number greater than 0 ohms"
+        );
+        assert_eq!(
+            err(&format!("{head}value = \"4x7\"\n")),
+            "line 5: `part[2].value` = \"4x7\": is not engineering notation (unknown scale letter `x`); write e.g. \"4k7\", \"2.2M\" or 470"
+        );
+        assert_eq!(
+            err(&format!("{head}value = true\n")),
+            "line 5: `part[2].value` = true: must be a number of ohms or text such as \"4k7\""
+        );
+    }
+
+    #[test]
+    fn rejects_bad_tolerance_and_power() {
+        assert_eq!(
+            err("[[part]]\nvalue = 100\ntolerance = 1.0\n"),
+            "line 3: `part[1].tolerance` = 1.0: must be a fraction in [0, 1), e.g. 0.05 for ±5 %"
+        );
+        assert_eq!(
+            err("tolerance = -0.01\n[[part]]\nvalue = 100\n"),
+            "line 1: `tolerance` = -0.01: must be a fraction in [0, 1), e.g. 0.05 for ±5 %"
+        );
+        assert_eq!(
+            err("[[part]]\nvalue = 100\ntolerance = \"5%\"\n"),
+            "line 3: `part[1].tolerance` = \"5%\": must be a fraction in [0, 1), e.g. 0.05 for ±5 %"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\n[[part]]\nvalue = 100\npower = 0\n"),
+            "line 4: `part[1].power` = 0: must be a finite number greater than 0 watts"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\npower = \"-1\"\n[[part]]\nvalue = 100\n"),
+            "line 2: `power` = \"-1\": must be a finite number greater than 0 watts"
+        );
+        assert_eq!(
+            err("[[part]]\nvalue = 100\n"),
+            "line 2: `part[1].tolerance` = (missing): give the part a `tolerance` or set a top-level `tolerance` default"
+        );
+    }
+
+    #[test]
+    fn rejects_empty_lists_unknown_keys_and_syntax() {
+        assert_eq!(
+            err("name = \"empty\"\ntolerance = 0.05\n"),
+            "`part` = (none): a stock list needs at least one [[part]] with a `value`"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\npart = []\n"),
+            "`part` = (none): a stock list needs at least one [[part]] with a `value`"
+        );
+        assert_eq!(
+            err("name = \"x\"\ntolerence = 0.05\n[[part]]\nvalue = 1\n"),
+            "line 2, column 1: unknown field `tolerence`, expected one of `name`, `tolerance`, `power`, `part`"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\n[[part]]\nvalue = 1\nwatts = 2\n"),
+            "line 4, column 1: unknown field `watts`, expected one of `value`, `tolerance`, `power`"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\n[[part]]\ntolerance = 0.01\n"),
+            "line 2, column 1: missing field `value`"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\n[[part]]\nvalue = \n"),
+            "line 3, column 9: invalid string; expected `\"`, `'`"
+        );
+        assert_eq!(
+            err("name = \"  \"\n[[part]]\nvalue = 1\ntolerance = 0\n"),
+            "line 1: `name` = \"  \": must not be empty"
+        );
+    }
+
+    #[test]
+    fn rejects_duplicate_values_naming_both_lines() {
+        let text = "tolerance = 0.05\n[[part]]\nvalue = \"4k7\"\n[[part]]\nvalue = 1000\n\
+                    [[part]]\nvalue = 4700\n";
+        assert_eq!(
+            err(text),
+            "line 7: `part[3].value` = 4700: repeats part[1] on line 3 (4.7k ohms); list each value once"
+        );
+    }
 }

@@ -2,16 +2,26 @@
 //!
 //! A catalog is a sorted list of resistor values (ohms) with a tolerance and
 //! an optional power rating per value. It answers neighbour queries (the
-//! value below, above and nearest to a target) by binary search.
+//! value below, above and nearest to a target) by binary search, and
+//! [`snap`] builds snapping and divider-ratio answers on top of them.
 //!
 //! This module parses text handed to it; it does no file I/O.
 
+pub mod error;
+mod query;
 pub mod series;
+pub mod snap;
 pub mod stock;
 
+pub use error::CatalogError;
 pub use series::ESeries;
 
 use serde::Serialize;
+
+/// Relative slack applied to every inclusive bound and to the neighbour
+/// queries, dimensionless: a value within `1e-9 · x` of `x` counts as equal
+/// to it, so arithmetic noise never pushes 4.7 kΩ out of `[4.7 kΩ, …]`.
+pub const RELATIVE_SLACK: f64 = 1e-9;
 
 /// One value a catalog can supply.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]

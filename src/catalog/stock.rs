@@ -1,1 +1,383 @@
-//! In-house stock lists.
+//! In-house stock lists: the resistor values actually on the shelf.
+//!
+//! Schema (TOML; documented for users in `catalogs/README.md`):
+//!
+//! ```toml
+//! name = "bench drawer"   # optional, default "stock"
+//! tolerance = 0.05        # optional default for parts, relative, in [0, 1)
+//! power = "250m"          # optional default rating for parts, watts
+//!
+//! [[part]]
+//! value = "4k7"           # ohms: a number or engineering text
+//! tolerance = 0.01        # optional, overrides the default
+//! power = 0.5             # optional, watts, overrides the default
+//! ```
+//!
+//! Every part needs a tolerance, its own or the default. Values are sorted
+//! ascending. A value listed twice (equal within [`RELATIVE_SLACK`]) is an
+//! error rather than a silent merge, because the two entries may disagree on
+//! tolerance or rating. Parts are numbered from 1 in messages, in file order.
+
+use serde::Deserialize;
+use toml::Spanned;
+
+use super::{Catalog, CatalogError, Part, RELATIVE_SLACK};
+use crate::units::{format_value, parse_value};
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawStock {
+    name: Option<Spanned<String>>,
+    tolerance: Option<Spanned<toml::Value>>,
+    power: Option<Spanned<toml::Value>>,
+    part: Option<Vec<RawPart>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawPart {
+    value: Spanned<toml::Value>,
+    tolerance: Option<Spanned<toml::Value>>,
+    power: Option<Spanned<toml::Value>>,
+}
+
+/// 1-based line and column (in characters) of byte offset `at` in `text`.
+fn line_col(text: &str, at: usize) -> (usize, usize) {
+    let before = text.get(..at).unwrap_or(text);
+    let line = before.matches('\n').count() + 1;
+    let line_start = before.rfind('\n').map_or(0, |i| i + 1);
+    let column = before.get(line_start..).map_or(0, |s| s.chars().count()) + 1;
+    (line, column)
+}
+
+/// Reads fields against the source text so errors quote it and give lines.
+struct Reader<'a> {
+    text: &'a str,
+}
+
+impl Reader<'_> {
+    fn line(&self, at: usize) -> usize {
+        line_col(self.text, at).0
+    }
+
+    fn error<T>(&self, field: &str, raw: &Spanned<T>, rule: &str) -> CatalogError {
+        let span = raw.span();
+        let value = self
+            .text
+            .get(span.clone())
+            .unwrap_or("?")
+            .trim()
+            .to_string();
+        CatalogError::Invalid {
+            field: field.to_string(),
+            value,
+            rule: rule.to_string(),
+            line: Some(self.line(span.start)),
+        }
+    }
+
+    /// A number or engineering text, finite and greater than 0, in `unit`.
+    fn positive(
+        &self,
+        field: &str,
+        raw: &Spanned<toml::Value>,
+        unit: &str,
+    ) -> Result<f64, CatalogError> {
+        let v = match raw.get_ref() {
+            toml::Value::Float(f) => *f,
+            toml::Value::Integer(i) => *i as f64,
+            toml::Value::String(s) => parse_value(s).map_err(|e| {
+                self.error(
+                    field,
+                    raw,
+                    &format!(
+                        "is not engineering notation ({}); write e.g. \"4k7\", \"2.2M\" or 470",
+                        e.reason
+                    ),
+                )
+            })?,
+            _ => {
+                return Err(self.error(
+                    field,
+                    raw,
+                    &format!("must be a number of {unit} or text such as \"4k7\""),
+                ))
+            }
+        };
+        if !(v.is_finite() && v > 0.0) {
+            return Err(self.error(
+                field,
+                raw,
+                &format!("must be a finite number greater than 0 {unit}"),
+            ));
+        }
+        Ok(v)
+    }
+
+    /// A relative tolerance in `[0, 1)`.
+    fn tolerance(&self, field: &str, raw: &Spanned<toml::Value>) -> Result<f64, CatalogError> {
+        let v = match raw.get_ref() {
+            toml::Value::Float(f) => Some(*f),
+            toml::Value::Integer(i) => Some(*i as f64),
+            _ => None,
+        };
+        match v {
+            Some(t) if (0.0..1.0).contains(&t) => Ok(t),
+            _ => Err(self.error(
+                field,
+                raw,
+                "must be a fraction in [0, 1), e.g. 0.05 for ±5 %",
+            )),
+        }
+    }
+}
+
+/// Parse a stock list (TOML text, schema in the module docs) into a
+/// [`Catalog`] sorted by ascending resistance (ohms), with per-part
+/// tolerances (relative) and power ratings (watts).
+///
+/// Errors name the field, the value as written, the rule and the line: a
+/// TOML syntax error, an unknown key, no `[[part]]` at all, a value that is
+/// not a finite resistance above 0 ohms, a tolerance outside `[0, 1)` or
+/// missing, a power rating not above 0 watts, or a value listed twice.
+pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
+    let raw: RawStock = toml::from_str(text).map_err(|e| {
+        let (line, column) = e.span().map_or((1, 1), |s| line_col(text, s.start));
+        CatalogError::Syntax {
+            line,
+            column,
+            // One line per error, for terminals and JSON alike.
+            message: e.message().trim().replace('\n', "; "),
+        }
+    })?;
+    let r = Reader { text };
+
+    let name = match &raw.name {
+        None => "stock".to_string(),
+        Some(n) if n.get_ref().trim().is_empty() => {
+            return Err(r.error("name", n, "must not be empty"))
+        }
+        Some(n) => n.get_ref().trim().to_string(),
+    };
+    let default_tol = raw
+        .tolerance
+        .as_ref()
+        .map(|t| r.tolerance("tolerance", t))
+        .transpose()?;
+    let default_power = raw
+        .power
+        .as_ref()
+        .map(|p| r.positive("power", p, "watts"))
+        .transpose()?;
+
+    let raw_parts = raw.part.unwrap_or_default();
+    if raw_parts.is_empty() {
+        return Err(CatalogError::Invalid {
+            field: "part".to_string(),
+            value: "(none)".to_string(),
+            rule: "a stock list needs at least one [[part]] with a `value`".to_string(),
+            line: None,
+        });
+    }
+
+    // (part, file number from 1, line of its value, the value as written)
+    let mut parts: Vec<(Part, usize, usize, &Spanned<toml::Value>)> =
+        Vec::with_capacity(raw_parts.len());
+    for (i, p) in raw_parts.iter().enumerate() {
+        let n = i + 1;
+        let ohms = r.positive(&format!("part[{n}].value"), &p.value, "ohms")?;
+        let tolerance = match &p.tolerance {
+            Some(t) => r.tolerance(&format!("part[{n}].tolerance"), t)?,
+            None => default_tol.ok_or_else(|| CatalogError::Invalid {
+                field: format!("part[{n}].tolerance"),
+                value: "(missing)".to_string(),
+                rule: "give the part a `tolerance` or set a top-level `tolerance` default"
+                    .to_string(),
+                line: Some(r.line(p.value.span().start)),
+            })?,
+        };
+        let power_w = match &p.power {
+            Some(w) => Some(r.positive(&format!("part[{n}].power"), w, "watts")?),
+            None => default_power,
+        };
+        let part = Part {
+            ohms,
+            tolerance,
+            power_w,
+        };
+        parts.push((part, n, r.line(p.value.span().start), &p.value));
+    }
+
+    // Stable sort keeps file order among equal values, so the later entry
+    // of a pair is the one reported.
+    parts.sort_by(|a, b| a.0.ohms.total_cmp(&b.0.ohms));
+    for w in parts.windows(2) {
+        let (first, second) = (&w[0], &w[1]);
+        if second.0.ohms <= first.0.ohms * (1.0 + RELATIVE_SLACK) {
+            let (earlier, later) = if first.1 < second.1 {
+                (first, second)
+            } else {
+                (second, first)
+            };
+            return Err(r.error(
+                &format!("part[{}].value", later.1),
+                later.3,
+                &format!(
+                    "repeats part[{}] on line {} ({} ohms); list each value once",
+                    earlier.1,
+                    earlier.2,
+                    format_value(earlier.0.ohms)
+                ),
+            ));
+        }
+    }
+
+    Ok(Catalog {
+        name,
+        parts: parts.into_iter().map(|(p, ..)| p).collect(),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn err(text: &str) -> String {
+        parse(text).unwrap_err().to_string()
+    }
+
+    #[test]
+    fn shipped_example_parses_sorted() {
+        let c = parse(include_str!("../../catalogs/stock-example.toml")).unwrap();
+        assert_eq!(c.name, "bench drawer");
+        assert_eq!(c.parts.len(), 31);
+        assert!(c.parts.windows(2).all(|w| w[0].ohms < w[1].ohms));
+    }
+
+    // Engineering notation as written on schematics: common practice.
+    #[test]
+    fn reads_numbers_text_defaults_and_overrides() {
+        let c = parse(
+            "name = \"drawer\"\ntolerance = 0.05\npower = \"250m\"\n\
+             [[part]]\nvalue = \"4k7\"\n\
+             [[part]]\nvalue = 470\ntolerance = 0.01\npower = 0.5\n\
+             [[part]]\nvalue = 2.2e6\ntolerance = 0\n",
+        )
+        .unwrap();
+        let got: Vec<(f64, f64, Option<f64>)> = c
+            .parts
+            .iter()
+            .map(|p| (p.ohms, p.tolerance, p.power_w))
+            .collect();
+        assert_eq!(
+            got,
+            [
+                (470.0, 0.01, Some(0.5)),
+                (4700.0, 0.05, Some(0.25)),
+                (2.2e6, 0.0, Some(0.25)),
+            ]
+        );
+        let c = parse("[[part]]\nvalue = 10\ntolerance = 0.1\n").unwrap();
+        assert_eq!(c.name, "stock");
+        assert_eq!(c.parts[0].power_w, None);
+    }
+
+    #[test]
+    fn rejects_bad_values_with_line_field_and_rule() {
+        let head = "tolerance = 0.05\n[[part]]\nvalue = 100\n[[part]]\n";
+        assert_eq!(
+            err(&format!("{head}value = \"-4k7\"\n")),
+            "line 5: `part[2].value` = \"-4k7\": must be a finite number greater than 0 ohms"
+        );
+        assert_eq!(
+            err(&format!("{head}value = 0\n")),
+            "line 5: `part[2].value` = 0: must be a finite number greater than 0 ohms"
+        );
+        assert_eq!(
+            err(&format!("{head}value = nan\n")),
+            "line 5: `part[2].value` = nan: must be a finite number greater than 0 ohms"
+        );
+        assert_eq!(
+            err(&format!("{head}value = inf\n")),
+            "line 5: `part[2].value` = inf: must be a finite number greater than 0 ohms"
+        );
+        assert_eq!(
+            err(&format!("{head}value = \"4x7\"\n")),
+            "line 5: `part[2].value` = \"4x7\": is not engineering notation (unknown scale letter `x`); write e.g. \"4k7\", \"2.2M\" or 470"
+        );
+        assert_eq!(
+            err(&format!("{head}value = true\n")),
+            "line 5: `part[2].value` = true: must be a number of ohms or text such as \"4k7\""
+        );
+    }
+
+    #[test]
+    fn rejects_bad_tolerance_and_power() {
+        assert_eq!(
+            err("[[part]]\nvalue = 100\ntolerance = 1.0\n"),
+            "line 3: `part[1].tolerance` = 1.0: must be a fraction in [0, 1), e.g. 0.05 for ±5 %"
+        );
+        assert_eq!(
+            err("tolerance = -0.01\n[[part]]\nvalue = 100\n"),
+            "line 1: `tolerance` = -0.01: must be a fraction in [0, 1), e.g. 0.05 for ±5 %"
+        );
+        assert_eq!(
+            err("[[part]]\nvalue = 100\ntolerance = \"5%\"\n"),
+            "line 3: `part[1].tolerance` = \"5%\": must be a fraction in [0, 1), e.g. 0.05 for ±5 %"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\n[[part]]\nvalue = 100\npower = 0\n"),
+            "line 4: `part[1].power` = 0: must be a finite number greater than 0 watts"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\npower = \"-1\"\n[[part]]\nvalue = 100\n"),
+            "line 2: `power` = \"-1\": must be a finite number greater than 0 watts"
+        );
+        assert_eq!(
+            err("[[part]]\nvalue = 100\n"),
+            "line 2: `part[1].tolerance` = (missing): give the part a `tolerance` or set a top-level `tolerance` default"
+        );
+    }
+
+    #[test]
+    fn rejects_empty_lists_unknown_keys_and_syntax() {
+        assert_eq!(
+            err("name = \"empty\"\ntolerance = 0.05\n"),
+            "`part` = (none): a stock list needs at least one [[part]] with a `value`"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\npart = []\n"),
+            "`part` = (none): a stock list needs at least one [[part]] with a `value`"
+        );
+        assert_eq!(
+            err("name = \"x\"\ntolerence = 0.05\n[[part]]\nvalue = 1\n"),
+            "line 2, column 1: unknown field `tolerence`, expected one of `name`, `tolerance`, `power`, `part`"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\n[[part]]\nvalue = 1\nwatts = 2\n"),
+            "line 4, column 1: unknown field `watts`, expected one of `value`, `tolerance`, `power`"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\n[[part]]\ntolerance = 0.01\n"),
+            "line 2, column 1: missing field `value`"
+        );
+        assert_eq!(
+            err("tolerance = 0.05\n[[part]]\nvalue = \n"),
+            "line 3, column 9: invalid string; expected `\"`, `'`"
+        );
+        assert_eq!(
+            err("name = \"  \"\n[[part]]\nvalue = 1\ntolerance = 0\n"),
+            "line 1: `name` = \"  \": must not be empty"
+        );
+    }
+
+    #[test]
+    fn rejects_duplicate_values_naming_both_lines() {
+        let text = "tolerance = 0.05\n[[part]]\nvalue = \"4k7\"\n[[part]]\nvalue = 1000\n\
+                    [[part]]\nvalue = 4700\n";
+        assert_eq!(
+            err(text),
+            "line 7: `part[3].value` = 4700: repeats part[1] on line 3 (4.7k ohms); list each value once"
+        );
+    }
+}

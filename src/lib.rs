@@ -20,6 +20,7 @@ pub mod catalog;
 pub mod cli;
 pub mod device;
 pub mod netlist;
+pub mod report;
 pub mod spec;
 pub mod topology;
 pub mod units;

@@ -1,3 +1,6 @@
 //! Integration tests.
 
+/// IEC 60063 tables and catalog queries.
 mod eseries;
+/// Exported decks run through ngspice and compared with the closed forms.
+mod ngspice;

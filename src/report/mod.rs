@@ -1,0 +1,4 @@
+//! Output formats. One file per format; each turns results into text and
+//! never writes files or computes physics.
+
+pub mod spice;

@@ -282,64 +282,66 @@ pub fn gain_window(spec: &ValidSpec) -> (f64, f64) {
     (g * (1.0 - spec.target.tolerance), g * (1.0 + spec.target.tolerance))
 }
 
-/// Check the worst case against every requirement of the specification.
-pub fn assess(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> Vec<Check> {
+/// Requirement ids, in the order [`margins`] and [`assess`] report them.
+pub const REQUIREMENTS: [&str; 11] = [
+    "gain",
+    "polarity",
+    "zin_min",
+    "vds_min",
+    "saturation",
+    "gate_bias",
+    "id_max",
+    "power_max",
+    "zout_max",
+    "vds_max",
+    "pd_max",
+];
+
+/// Numeric margin of one requirement (no text), for the hot loops.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Margin {
+    /// Index into [`REQUIREMENTS`].
+    pub which: usize,
+    /// Normalised margin (>= 0 passes), as in [`Check::margin`].
+    pub margin: f64,
+    /// True when the requirement holds (with the inclusive slack).
+    pub pass: bool,
+}
+
+/// Every applicable requirement's margin, without building any text.
+pub fn margins(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> Vec<Margin> {
     let s = &p.spec;
     let span = s.supply.vdd_v - s.supply.vss_v;
     let (lo, hi) = gain_window(s);
     let g = s.target.gain;
-    let mut out = Vec::new();
-    let gm = ((wc.gain_abs_min - lo) / g).min((hi - wc.gain_abs_max) / g);
-    out.push(Check {
-        name: "gain",
-        required: format!("|gain| in {}..{}", fmt(lo, ""), fmt(hi, "")),
-        achieved: format!("{}..{}", fmt(wc.gain_abs_min, ""), fmt(wc.gain_abs_max, "")),
-        margin: gm,
-        pass: wc.gain_abs_min >= lo * (1.0 - SLACK) && wc.gain_abs_max <= hi * (1.0 + SLACK),
-    });
+    let mut out = Vec::with_capacity(11);
+    let mut push = |which: usize, margin: f64, pass: bool| out.push(Margin { which, margin, pass });
+    push(
+        0,
+        ((wc.gain_abs_min - lo) / g).min((hi - wc.gain_abs_max) / g),
+        wc.gain_abs_min >= lo * (1.0 - SLACK) && wc.gain_abs_max <= hi * (1.0 + SLACK),
+    );
     let want_sign = match s.target.polarity {
-        Polarity::Inverting => Some(-1.0),
-        Polarity::NonInverting => Some(1.0),
+        Polarity::Inverting => Some(false),
+        Polarity::NonInverting => Some(true),
         Polarity::Any => None,
     };
-    if let Some(sign) = want_sign {
-        let got = if t.non_inverting() { 1.0 } else { -1.0 };
-        out.push(Check {
-            name: "polarity",
-            required: if sign < 0.0 { "inverting" } else { "non-inverting" }.to_string(),
-            achieved: if got < 0.0 { "inverting" } else { "non-inverting" }.to_string(),
-            margin: if got == sign { 0.0 } else { -1.0 },
-            pass: got == sign,
-        });
+    if let Some(ni) = want_sign {
+        let ok = t.non_inverting() == ni;
+        push(1, if ok { 0.0 } else { -1.0 }, ok);
     }
-    out.push(Check {
-        name: "zin_min",
-        required: format!("Zin >= {}", fmt(s.zin_min_ohm, "Ω")),
-        achieved: fmt(wc.zin_min_ohm, "Ω"),
-        margin: wc.zin_min_ohm / s.zin_min_ohm - 1.0,
-        pass: wc.zin_min_ohm >= s.zin_min_ohm * (1.0 - SLACK),
-    });
-    out.push(Check {
-        name: "vds_min",
-        required: format!("VDS >= {}", fmt(s.vds_min_v, "V")),
-        achieved: fmt(wc.vds_min_v, "V"),
-        margin: (wc.vds_min_v - s.vds_min_v) / span,
-        pass: wc.vds_min_v >= s.vds_min_v - SLACK * span,
-    });
-    out.push(Check {
-        name: "saturation",
-        required: "VDS >= VGS - VGS(off)/VT at every corner".to_string(),
-        achieved: format!("worst margin {}", fmt(wc.sat_margin_v, "V")),
-        margin: wc.sat_margin_v / span,
-        pass: wc.saturated && wc.id_min_a > 0.0,
-    });
+    push(
+        2,
+        wc.zin_min_ohm / s.zin_min_ohm - 1.0,
+        wc.zin_min_ohm >= s.zin_min_ohm * (1.0 - SLACK),
+    );
+    push(
+        3,
+        (wc.vds_min_v - s.vds_min_v) / span,
+        wc.vds_min_v >= s.vds_min_v - SLACK * span,
+    );
+    push(4, wc.sat_margin_v / span, wc.saturated && wc.id_min_a > 0.0);
     let d = &s.device;
-    let gate_req = match (d.vgs_min_v, d.vgs_max_v) {
-        (Some(a), Some(b)) => format!("{} <= VGS <= {}", fmt(a, "V"), fmt(b, "V")),
-        (None, Some(b)) => format!("VGS <= {}", fmt(b, "V")),
-        (Some(a), None) => format!("VGS >= {}", fmt(a, "V")),
-        (None, None) => "no gate rating given".to_string(),
-    };
     let gate_margin = {
         let hi = d.vgs_max_v.map_or(f64::INFINITY, |m| m - wc.vgs_max_v);
         let lo = d.vgs_min_v.map_or(f64::INFINITY, |m| wc.vgs_min_v - m);
@@ -350,30 +352,85 @@ pub fn assess(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> Vec<Check> {
             1.0
         }
     };
-    out.push(Check {
-        name: "gate_bias",
-        required: gate_req,
-        achieved: format!("VGS {}..{}", fmt(wc.vgs_min_v, "V"), fmt(wc.vgs_max_v, "V")),
-        margin: gate_margin,
-        pass: wc.gate_ok,
-    });
-    let limit = |name: &'static str, lim: Option<f64>, got: f64, unit: &str, out: &mut Vec<Check>| {
+    push(5, gate_margin, wc.gate_ok);
+    let limits = [
+        (6, s.limits.id_max_a, wc.id_max_a),
+        (7, s.limits.power_max_w, wc.power_max_w),
+        (8, s.limits.zout_max_ohm, wc.zout_max_ohm),
+        (9, d.vds_max_v, wc.vds_max_v),
+        (10, d.pd_max_w, wc.pd_max_w),
+    ];
+    for (which, lim, got) in limits {
         if let Some(l) = lim {
-            out.push(Check {
-                name,
-                required: format!("<= {}", fmt(l, unit)),
-                achieved: fmt(got, unit),
-                margin: 1.0 - got / l,
-                pass: got <= l * (1.0 + SLACK),
-            });
+            push(which, 1.0 - got / l, got <= l * (1.0 + SLACK));
         }
-    };
-    limit("id_max", s.limits.id_max_a, wc.id_max_a, "A", &mut out);
-    limit("power_max", s.limits.power_max_w, wc.power_max_w, "W", &mut out);
-    limit("zout_max", s.limits.zout_max_ohm, wc.zout_max_ohm, "Ω", &mut out);
-    limit("vds_max", d.vds_max_v, wc.vds_max_v, "V", &mut out);
-    limit("pd_max", d.pd_max_w, wc.pd_max_w, "W", &mut out);
+    }
     out
+}
+
+/// True when every margin passes.
+pub fn all_pass(ms: &[Margin]) -> bool {
+    ms.iter().all(|m| m.pass)
+}
+
+/// Check the worst case against every requirement of the specification,
+/// with the words and numbers for people.
+pub fn assess(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> Vec<Check> {
+    let s = &p.spec;
+    let (lo, hi) = gain_window(s);
+    let d = &s.device;
+    margins(p, t, wc)
+        .into_iter()
+        .map(|m| {
+            let (required, achieved) = match m.which {
+                0 => (
+                    format!("|gain| in {}..{}", fmt(lo, ""), fmt(hi, "")),
+                    format!("{}..{}", fmt(wc.gain_abs_min, ""), fmt(wc.gain_abs_max, "")),
+                ),
+                1 => {
+                    let want = if s.target.polarity == Polarity::Inverting { "inverting" } else { "non-inverting" };
+                    let got = if t.non_inverting() { "non-inverting" } else { "inverting" };
+                    (want.to_string(), got.to_string())
+                }
+                2 => (format!("Zin >= {}", fmt(s.zin_min_ohm, "Ω")), fmt(wc.zin_min_ohm, "Ω")),
+                3 => (format!("VDS >= {}", fmt(s.vds_min_v, "V")), fmt(wc.vds_min_v, "V")),
+                4 => (
+                    "VDS >= VGS - VGS(off)/VT at every corner".to_string(),
+                    if wc.id_min_a > 0.0 {
+                        format!("worst margin {}", fmt(wc.sat_margin_v, "V"))
+                    } else {
+                        "cut off at some corner".to_string()
+                    },
+                ),
+                5 => (
+                    match (d.vgs_min_v, d.vgs_max_v) {
+                        (Some(a), Some(b)) => format!("{} <= VGS <= {}", fmt(a, "V"), fmt(b, "V")),
+                        (None, Some(b)) => format!("VGS <= {}", fmt(b, "V")),
+                        (Some(a), None) => format!("VGS >= {}", fmt(a, "V")),
+                        (None, None) => "no gate rating given".to_string(),
+                    },
+                    format!("VGS {}..{}", fmt(wc.vgs_min_v, "V"), fmt(wc.vgs_max_v, "V")),
+                ),
+                k => {
+                    let (lim, got, unit) = match k {
+                        6 => (s.limits.id_max_a, wc.id_max_a, "A"),
+                        7 => (s.limits.power_max_w, wc.power_max_w, "W"),
+                        8 => (s.limits.zout_max_ohm, wc.zout_max_ohm, "Ω"),
+                        9 => (d.vds_max_v, wc.vds_max_v, "V"),
+                        _ => (d.pd_max_w, wc.pd_max_w, "W"),
+                    };
+                    (format!("<= {}", fmt(lim.unwrap_or(f64::NAN), unit)), fmt(got, unit))
+                }
+            };
+            Check {
+                name: REQUIREMENTS[m.which],
+                required,
+                achieved,
+                margin: m.margin,
+                pass: m.pass,
+            }
+        })
+        .collect()
 }
 
 /// True when every check passes.

@@ -23,6 +23,7 @@ pub mod device;
 pub mod netlist;
 pub mod rank;
 pub mod search;
+pub mod summary;
 pub mod report;
 pub mod spec;
 pub mod topology;

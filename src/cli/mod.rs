@@ -1,8 +1,213 @@
 //! Command-line interface: parse, dispatch, print. No engineering here.
+//!
+//! Exit codes: 0 = a design was found (or the command did its job),
+//! 1 = the search ran but no design is feasible, 2 = bad input or I/O.
+//! The product goes to stdout; warnings and errors go to stderr. A closed
+//! pipe ends the program quietly.
 
+mod args;
+mod load;
+
+use anyhow::{bail, Context, Result};
+use args::{Cli, Cmd, Format};
+use clap::Parser;
+use std::io::Write;
 use std::process::ExitCode;
+
+use crate::analysis::Problem;
+use crate::catalog::snap;
+use crate::report;
+use crate::search::{self, Options};
+use crate::summary;
 
 /// Entry point of the binary.
 pub fn main() -> ExitCode {
-    ExitCode::SUCCESS
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            let code = if e.use_stderr() { 2 } else { 0 };
+            let _ = e.print();
+            return ExitCode::from(code);
+        }
+    };
+    match run(cli) {
+        Ok(code) => code,
+        Err(e) => {
+            if is_broken_pipe(&e) {
+                return ExitCode::SUCCESS;
+            }
+            let _ = writeln!(std::io::stderr(), "error: {e:#}");
+            ExitCode::from(2)
+        }
+    }
+}
+
+fn is_broken_pipe(e: &anyhow::Error) -> bool {
+    e.chain().any(|c| {
+        c.downcast_ref::<std::io::Error>()
+            .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
+    })
+}
+
+/// Write the product to stdout (errors propagate so a broken pipe is seen).
+fn emit(text: &str) -> Result<()> {
+    let mut out = std::io::stdout().lock();
+    out.write_all(text.as_bytes())?;
+    out.flush()?;
+    Ok(())
+}
+
+/// Talk to stderr; failures to write there are ignored.
+fn talk(text: &str) {
+    let _ = writeln!(std::io::stderr(), "{text}");
+}
+
+fn json<T: serde::Serialize>(v: &T) -> Result<String> {
+    let mut s = serde_json::to_string_pretty(v).context("serialising JSON")?;
+    s.push('\n');
+    Ok(s)
+}
+
+fn run(cli: Cli) -> Result<ExitCode> {
+    match cli.cmd {
+        Cmd::Snap(a) => snap_cmd(a),
+        Cmd::Topologies => {
+            let mut s = String::new();
+            for t in crate::topology::TOPOLOGIES {
+                let fams: Vec<&str> = t.families().iter().map(|f| f.id()).collect();
+                s.push_str(&format!(
+                    "{:<18} {:<24} {}{}\n    families: {}\n",
+                    t.id(),
+                    t.parts().join(","),
+                    t.summary(),
+                    if t.needs_vss() { " [needs vss < 0]" } else { "" },
+                    fams.join(", ")
+                ));
+            }
+            emit(&s)?;
+            Ok(ExitCode::SUCCESS)
+        }
+        Cmd::Analyze(a) => analyze_cmd(a),
+        Cmd::Design(a) => design_cmd(a),
+    }
+}
+
+fn snap_cmd(a: args::SnapArgs) -> Result<ExitCode> {
+    let series = crate::catalog::ESeries::from_name(&a.series).with_context(|| {
+        format!("`--series` = {}: expected one of E6, E12, E24, E48, E96, E192", a.series)
+    })?;
+    if let Some(ratio_text) = &a.ratio {
+        let ratio = crate::units::parse_value(ratio_text).context("`--ratio`")?;
+        let total = a
+            .total
+            .as_deref()
+            .context("`--ratio` needs `--total MIN..MAX` (the allowed R1 + R2, ohms)")?;
+        let (lo, hi) = load::parse_span(total).context("`--total`")?;
+        let cat = crate::catalog::Catalog::from_series(series, None, 1e-3, hi.max(1.0))?;
+        let pairs = snap::ratio_pairs(&cat, ratio, lo, hi, a.count)?;
+        let text = match a.format {
+            Format::Json => json(&pairs)?,
+            _ => report::table::ratio(&pairs, ratio),
+        };
+        emit(&text)?;
+        return Ok(ExitCode::SUCCESS);
+    }
+    if a.values.is_empty() {
+        bail!("`snap` needs at least one VALUE (e.g. `gatewright snap 4k7 --series E96`) or `--ratio R --total MIN..MAX`");
+    }
+    let mut rows = Vec::new();
+    for text in &a.values {
+        let v = crate::units::parse_value(text).with_context(|| format!("VALUE `{text}`"))?;
+        if v <= 0.0 {
+            bail!("VALUE `{text}` = {v}: a resistance must be greater than 0");
+        }
+        let cat = crate::catalog::Catalog::from_series(series, None, (v / 100.0).max(1e-3), v * 100.0)?;
+        rows.push(snap::snap_value(&cat, v)?);
+    }
+    let text = match a.format {
+        Format::Json => json(&rows)?,
+        _ => report::table::snap(&rows),
+    };
+    emit(&text)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn analyze_cmd(a: args::AnalyzeArgs) -> Result<ExitCode> {
+    let loaded = load::spec(&a.spec)?;
+    let t = crate::topology::by_id(&a.topology).with_context(|| {
+        format!(
+            "`--topology` = {}: unknown; expected one of {}",
+            a.topology,
+            crate::topology::ids().join(", ")
+        )
+    })?;
+    let values = load::values(t, &a.values, loaded.spec.device.family)?;
+    let tolerances: Vec<f64> = values.iter().map(|&v| loaded.tolerance_for(v)).collect();
+    let p = Problem::new(&loaded.spec);
+    if !t.supports(loaded.spec.device.family) {
+        talk(&format!(
+            "warning: {} is not a usual topology for a {}; analysing anyway",
+            t.id(),
+            loaded.spec.device.family.id()
+        ));
+    }
+    if t.needs_vss() && loaded.spec.supply.vss_v >= 0.0 {
+        bail!("`--topology` = {}: needs a negative rail; set `supply.vss` below 0 V", t.id());
+    }
+    let view = summary::analysis(&p, t, &values, &tolerances);
+    let text = match a.format {
+        Format::Json => json(&view)?,
+        Format::Spice => {
+            let input = load::netlist_input(&p, &p.nominal);
+            let net = t.netlist(&values, &input);
+            report::spice::netlist_to_spice(&net, &format!("gatewright {} nominal", t.id()), &[])
+        }
+        Format::Csv => bail!("`--format csv` is for `design`; use table, json or spice with `analyze`"),
+        Format::Table => report::table::analysis(&view, t.parts()),
+    };
+    emit(&text)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
+    let loaded = load::spec(&a.spec)?;
+    let shelf = loaded.shelf();
+    let opts = Options {
+        nominal_only: a.nominal,
+        prefer: a.prefer.into(),
+        top: a.top,
+        method: a.search.into(),
+        ..Options::default()
+    };
+    let outcome = search::run(&loaded.spec, &shelf, &opts)?;
+    let full = Problem::new(&loaded.spec);
+    let report_view = summary::design_report(&full, &shelf.name, &outcome, Vec::new());
+    let text = match a.format {
+        Format::Json => json(&report_view)?,
+        Format::Csv => report::csv::designs(&report_view),
+        Format::Table => report::table::design(&report_view),
+        Format::Spice => {
+            let mut s = String::new();
+            for d in &outcome.designs {
+                let input = load::netlist_input(&full, &full.nominal);
+                let net = d.topology.netlist(&d.values, &input);
+                s.push_str(&report::spice::netlist_to_spice(
+                    &net,
+                    &format!("gatewright design {} {}", report_view.designs.len(), d.topology.id()),
+                    &[],
+                ));
+                s.push('\n');
+            }
+            s
+        }
+    };
+    emit(&text)?;
+    if outcome.nominal_only {
+        talk("warning: --nominal checks the nominal device and nominal resistor values only; the designs are not worst-case safe");
+    }
+    Ok(if outcome.designs.is_empty() {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
+    })
 }

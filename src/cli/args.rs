@@ -1,0 +1,143 @@
+//! Command-line arguments (clap derive): raw input, validated elsewhere.
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+use std::path::PathBuf;
+
+/// gatewright: discrete FET amplifier stages from requirements, with
+/// standard resistor values, checked across the device's datasheet spread.
+#[derive(Debug, Parser)]
+#[command(name = "gatewright", version, about, long_about = None)]
+pub(crate) struct Cli {
+    #[command(subcommand)]
+    pub(crate) cmd: Cmd,
+}
+
+#[derive(Debug, Subcommand)]
+pub(crate) enum Cmd {
+    /// Search every topology for standard-value designs that meet SPEC at
+    /// every device corner and tolerance extreme, ranked.
+    Design(DesignArgs),
+    /// Evaluate one topology with given values at every device corner.
+    Analyze(AnalyzeArgs),
+    /// Nearest E-series values, or resistor pairs for a divider ratio.
+    Snap(SnapArgs),
+    /// List the topologies with their parts and device families.
+    Topologies,
+}
+
+/// Output format.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, ValueEnum)]
+pub(crate) enum Format {
+    /// A table for the terminal.
+    #[default]
+    Table,
+    /// JSON with stable keys.
+    Json,
+    /// Comma-separated values.
+    Csv,
+    /// A SPICE netlist that ngspice runs unchanged.
+    Spice,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, ValueEnum)]
+pub(crate) enum PreferArg {
+    /// The documented default balance.
+    #[default]
+    Balanced,
+    /// Small gain spread, ample headroom.
+    Robust,
+    /// Low supply power.
+    LowPower,
+    /// Few parts.
+    FewParts,
+    /// Gain closest to the target at the worst corner.
+    Accurate,
+}
+
+impl From<PreferArg> for crate::rank::Prefer {
+    fn from(p: PreferArg) -> Self {
+        use crate::rank::Prefer;
+        match p {
+            PreferArg::Balanced => Prefer::Balanced,
+            PreferArg::Robust => Prefer::Robust,
+            PreferArg::LowPower => Prefer::LowPower,
+            PreferArg::FewParts => Prefer::FewParts,
+            PreferArg::Accurate => Prefer::Accurate,
+        }
+    }
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, ValueEnum)]
+pub(crate) enum SearchArg {
+    /// Pruned search (default).
+    #[default]
+    Smart,
+    /// Every combination over the shelf (the reference; slow).
+    Exhaustive,
+}
+
+impl From<SearchArg> for crate::search::Method {
+    fn from(s: SearchArg) -> Self {
+        match s {
+            SearchArg::Smart => crate::search::Method::Smart,
+            SearchArg::Exhaustive => crate::search::Method::Exhaustive,
+        }
+    }
+}
+
+#[derive(Debug, Args)]
+pub(crate) struct DesignArgs {
+    /// Specification file (TOML).
+    pub(crate) spec: PathBuf,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t)]
+    pub(crate) format: Format,
+    /// Check at the nominal device and nominal resistor values only (NOT worst case).
+    #[arg(long)]
+    pub(crate) nominal: bool,
+    /// What the ranking favours.
+    #[arg(long, value_enum, default_value_t)]
+    pub(crate) prefer: PreferArg,
+    /// How many designs to list.
+    #[arg(long, default_value_t = 10, value_parser = clap::value_parser!(u16).range(1..=1000).map(|v| v as usize))]
+    pub(crate) top: usize,
+    /// Search method.
+    #[arg(long, value_enum, default_value_t)]
+    pub(crate) search: SearchArg,
+}
+
+#[derive(Debug, Args)]
+pub(crate) struct AnalyzeArgs {
+    /// Specification file (TOML).
+    pub(crate) spec: PathBuf,
+    /// Topology id (see `gatewright topologies`).
+    #[arg(long)]
+    pub(crate) topology: String,
+    /// Every resistor of the topology, e.g. `R1=4.7M,R2=1M,RS=470,RD=6.8k`.
+    #[arg(long)]
+    pub(crate) values: String,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t)]
+    pub(crate) format: Format,
+}
+
+#[derive(Debug, Args)]
+pub(crate) struct SnapArgs {
+    /// Resistances to snap (engineering notation: 4k7, 2.2M, 150).
+    pub(crate) values: Vec<String>,
+    /// IEC 60063 series.
+    #[arg(long, default_value = "E24")]
+    pub(crate) series: String,
+    /// Divider ratio R2/(R1+R2) to realise with a pair.
+    #[arg(long)]
+    pub(crate) ratio: Option<String>,
+    /// Allowed total R1+R2 for `--ratio`, as MIN..MAX (e.g. 100k..1M).
+    #[arg(long)]
+    pub(crate) total: Option<String>,
+    /// How many pairs to list for `--ratio`.
+    #[arg(long, default_value_t = 5)]
+    pub(crate) count: usize,
+    /// Output format (table or json).
+    #[arg(long, value_enum, default_value_t)]
+    pub(crate) format: Format,
+}

@@ -17,6 +17,9 @@
 //! This module must not know about circuits or topologies.
 
 pub mod classes;
+pub mod input;
+
+pub use input::{DeviceInput, ParamError};
 
 use serde::Serialize;
 use std::collections::BTreeMap;

@@ -205,7 +205,7 @@ impl DeviceInput {
             err(
                 "idss",
                 format!(
-                    "is required for an {} (drain current at VGS = 0, amps)",
+                    "an {} needs IDSS, the drain current at VGS = 0 (amps)",
                     self.family.id()
                 ),
             )
@@ -214,7 +214,7 @@ impl DeviceInput {
             err(
                 "vgs_off",
                 format!(
-                    "is required for an {} (gate-source cut-off voltage, volts, negative)",
+                    "an {} needs VGS(off), the gate-source cut-off voltage (volts, negative)",
                     self.family.id()
                 ),
             )
@@ -241,7 +241,7 @@ impl DeviceInput {
         let vth = self.vth.ok_or_else(|| {
             err(
                 "vth",
-                "is required for an n-enhancement-mosfet (threshold voltage VT, volts)",
+                "an n-enhancement-mosfet needs VT, the threshold voltage (volts)",
             )
         })?;
         if vth.min <= 0.0 {
@@ -284,20 +284,20 @@ impl DeviceInput {
             (None, Some(_), None) => {
                 return Err(err(
                     "vgs_on",
-                    "is required with `id_on` (the VGS, volts, at which ID(on) is measured)",
+                    "`id_on` needs `vgs_on`, the VGS (volts) at which ID(on) is measured",
                 ))
             }
             (None, None, Some(_)) => {
                 return Err(err(
                     "id_on",
-                    "is required with `vgs_on` (the drain current, amps, at VGS(on))",
+                    "`vgs_on` needs `id_on`, the drain current (amps) at VGS(on)",
                 ))
             }
             (None, None, None) => {
                 return Err(err(
                     "k",
-                    "is required for an n-enhancement-mosfet: give `k` (A/V²) or `id_on` \
-                     (A) with `vgs_on` (V)",
+                    "an n-enhancement-mosfet needs its strength: `k` (A/V²) or `id_on` (A) \
+                     with `vgs_on` (V)",
                 ))
             }
         };

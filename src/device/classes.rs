@@ -155,9 +155,7 @@ impl RawClass {
             vds_max: num("vds_max", &self.vds_max)?,
             pd_max: num("pd_max", &self.pd_max)?,
         };
-        let device = input
-            .build(&self.id)
-            .map_err(|e| bad(e.param, e.rule))?;
+        let device = input.build(&self.id).map_err(|e| bad(e.param, e.rule))?;
         Ok(DeviceClass {
             id: self.id.clone(),
             description: self.description.clone(),
@@ -192,7 +190,13 @@ pub fn find<'a>(classes: &'a [DeviceClass], id: &str) -> Option<&'a DeviceClass>
 
 impl fmt::Display for DeviceClass {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "{} ({}): {}", self.id, self.device.family.id(), self.description)
+        write!(
+            f,
+            "{} ({}): {}",
+            self.id,
+            self.device.family.id(),
+            self.description
+        )
     }
 }
 

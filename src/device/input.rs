@@ -7,6 +7,7 @@
 //! the parameter and the rule, and the caller adds where it came from.
 
 use super::{Device, Family, ParamRange, Params, Strength};
+use crate::units::format_value;
 use std::fmt;
 
 /// Datasheet numbers for one device, before checking. Every field is
@@ -72,12 +73,19 @@ fn err(param: &'static str, rule: impl Into<String>) -> ParamError {
 /// `{ min, typ, max }` table: `min <= typ <= max` is required.
 pub fn range_from_table(min: f64, typ: Option<f64>, max: f64) -> Result<ParamRange, String> {
     if min > max {
-        return Err(format!("`min` ({min:?}) must not exceed `max` ({max:?})"));
+        return Err(format!(
+            "`min` ({}) must not exceed `max` ({})",
+            format_value(min),
+            format_value(max)
+        ));
     }
     if let Some(t) = typ {
         if t < min || t > max {
             return Err(format!(
-                "`typ` ({t:?}) must lie between `min` ({min:?}) and `max` ({max:?})"
+                "`typ` ({}) must lie between `min` ({}) and `max` ({})",
+                format_value(t),
+                format_value(min),
+                format_value(max)
             ));
         }
     }
@@ -116,7 +124,11 @@ impl DeviceInput {
             ("vds_max", self.vds_max.is_some()),
             ("pd_max", self.pd_max.is_some()),
         ];
-        flags.into_iter().filter(|(_, s)| *s).map(|(n, _)| n).collect()
+        flags
+            .into_iter()
+            .filter(|(_, s)| *s)
+            .map(|(n, _)| n)
+            .collect()
     }
 
     /// Lay `over` on top of `self`: every parameter `over` sets replaces
@@ -168,7 +180,10 @@ impl DeviceInput {
             )
         };
         if let Some(p) = self.given().into_iter().find(|p| wrong.contains(p)) {
-            return Err(err(p, format!("is not a parameter of an {}; {right}", fam.id())));
+            return Err(err(
+                p,
+                format!("is not a parameter of an {}; {right}", fam.id()),
+            ));
         }
         let params = if fam.is_depletion_type() {
             self.depletion_params()?
@@ -184,7 +199,10 @@ impl DeviceInput {
         }
         for (name, v) in [("vds_max", self.vds_max), ("pd_max", self.pd_max)] {
             if v.is_some_and(|x| x <= 0.0) {
-                return Err(err(name, "must be greater than 0 (a rating is a magnitude)"));
+                return Err(err(
+                    name,
+                    "must be greater than 0 (a rating is a magnitude)",
+                ));
             }
         }
         let (vgs_max_v, vgs_min_v) = self.gate_rating(&params)?;
@@ -273,9 +291,9 @@ impl DeviceInput {
                     return Err(err(
                         "vgs_on",
                         format!(
-                            "must be greater than every `vth` value (largest {:?} V): \
+                            "must be greater than every `vth` value (largest {} V): \
                              K = ID(on)/(VGS(on) − VT)² needs VGS(on) > VT",
-                            vth.max
+                            format_value(vth.max)
                         ),
                     ));
                 }
@@ -317,8 +335,9 @@ impl DeviceInput {
                 return Err(err(
                     "vgs_max",
                     format!(
-                        "must be above the most negative `vgs_off` ({on_above:?} V), or no \
-                         device could conduct"
+                        "must be above the most negative `vgs_off` ({} V), or no \
+                         device could conduct",
+                        format_value(on_above)
                     ),
                 ));
             }
@@ -334,8 +353,9 @@ impl DeviceInput {
             Some(m) if m <= on_above => Err(err(
                 "vgs_max",
                 format!(
-                    "must be above the lowest threshold ({on_above:?} V), or no device could \
-                     conduct"
+                    "must be above the lowest threshold ({} V), or no device could \
+                     conduct",
+                    format_value(on_above)
                 ),
             )),
             Some(m) => Ok((Some(m), Some(-m))),

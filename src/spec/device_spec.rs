@@ -74,7 +74,10 @@ pub(crate) fn device(s: &Section, classes: &[DeviceClass]) -> Result<Device, Spe
 }
 
 fn family_list() -> String {
-    let names: Vec<String> = Family::ALL.iter().map(|f| format!("\"{}\"", f.id())).collect();
+    let names: Vec<String> = Family::ALL
+        .iter()
+        .map(|f| format!("\"{}\"", f.id()))
+        .collect();
     names.join(", ")
 }
 
@@ -105,7 +108,10 @@ fn class<'a, 'c>(
     }
     let ids: Vec<&str> = classes.iter().map(|c| c.id.as_str()).collect();
     let quoted: Vec<String> = ids.iter().map(|i| format!("\"{i}\"")).collect();
-    let mut rule = format!("is not a known device class; the classes are {}", quoted.join(", "));
+    let mut rule = format!(
+        "is not a known device class; the classes are {}",
+        quoted.join(", ")
+    );
     if let Some(c) = closest(&id, &ids) {
         rule.push_str(&format!(" (did you mean \"{c}\"?)"));
     }
@@ -126,8 +132,14 @@ impl Bound {
     fn check(self, v: f64) -> Result<(), &'static str> {
         let (ok, rule) = match self {
             Bound::Current => (v.abs() <= I_MAX_A, "must be at most 100 A in magnitude"),
-            Bound::Voltage => (v.abs() <= V_MAX_V, "must be at most 10 kV (1e4 V) in magnitude"),
-            Bound::K => (v.abs() <= K_MAX_A_PER_V2, "must be at most 1000 A/V² in magnitude"),
+            Bound::Voltage => (
+                v.abs() <= V_MAX_V,
+                "must be at most 10 kV (1e4 V) in magnitude",
+            ),
+            Bound::K => (
+                v.abs() <= K_MAX_A_PER_V2,
+                "must be at most 1000 A/V² in magnitude",
+            ),
             Bound::Power => (v.abs() <= P_MAX_W, "must be at most 1 MW (1e6 W)"),
             Bound::None => (true, ""),
         };

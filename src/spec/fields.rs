@@ -149,7 +149,11 @@ impl<'a> Section<'a> {
 
     /// Refuse any key not in `known`, with a suggestion.
     pub fn check_keys_in(&self, known: &[&str]) -> Result<(), SpecError> {
-        let Some(e) = self.entries.iter().find(|e| !known.contains(&e.key.as_str())) else {
+        let Some(e) = self
+            .entries
+            .iter()
+            .find(|e| !known.contains(&e.key.as_str()))
+        else {
             return Ok(());
         };
         let elsewhere = SECTIONS

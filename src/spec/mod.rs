@@ -14,8 +14,8 @@ mod validate;
 
 pub use error::SpecError;
 pub use validate::{
-    DEFAULT_R_RANGE_OHM, DEFAULT_SERIES, F_LOW_MAX_HZ, I_MAX_A, K_MAX_A_PER_V2, MAX_GAIN,
-    MIN_GAIN, P_MAX_W, R_MAX_OHM, R_MIN_OHM, V_MAX_V,
+    DEFAULT_R_RANGE_OHM, DEFAULT_SERIES, F_LOW_MAX_HZ, I_MAX_A, K_MAX_A_PER_V2, MAX_GAIN, MIN_GAIN,
+    P_MAX_W, R_MAX_OHM, R_MIN_OHM, V_MAX_V,
 };
 
 use crate::catalog::ESeries;

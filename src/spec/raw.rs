@@ -147,11 +147,7 @@ impl<'de> Visitor<'de> for NodeVisitor {
 pub(crate) fn line_col(text: &str, offset: usize) -> (usize, usize) {
     let before = text.get(..offset).unwrap_or(text);
     let line = before.matches('\n').count() + 1;
-    let col = before
-        .rsplit('\n')
-        .next()
-        .map_or(0, |l| l.chars().count())
-        + 1;
+    let col = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1;
     (line, col)
 }
 
@@ -178,7 +174,7 @@ pub(crate) fn parse_document(text: &str) -> Result<Vec<Entry>, SpecError> {
         let message = if e.message().contains(DATETIME_KEY) {
             "a date-time is not a value any key of a specification takes".to_string()
         } else {
-            e.message().trim().to_string()
+            e.message().trim().replace('\n', "; ")
         };
         SpecError::Syntax { line, col, message }
     })?;

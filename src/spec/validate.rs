@@ -8,6 +8,7 @@ use super::raw::{parse_document, Entry, Node};
 use super::{CatalogChoice, Limits, Parts, Polarity, Supply, Target, ValidSpec};
 use crate::catalog::ESeries;
 use crate::device::classes::DeviceClass;
+use crate::units::format_value;
 
 /// Largest gain magnitude accepted, V/V (80 dB): beyond what one discrete
 /// stage delivers, so a larger figure is a slip of the pen.
@@ -73,8 +74,12 @@ pub(crate) fn validate(text: &str, classes: &[DeviceClass]) -> Result<ValidSpec,
             _ => return Err(root.invalid(e, "must be a string (a free-text name)")),
         },
     };
-    let target = target(&root.required_section("target", "the gain requirement: `gain` (V/V) and `tolerance`")?)?;
-    let supply = supply(&root.required_section("supply", "the rails: `vdd` (V), optionally `vss`")?)?;
+    let target = target(&root.required_section(
+        "target",
+        "the gain requirement: `gain` (V/V) and `tolerance`",
+    )?)?;
+    let supply =
+        supply(&root.required_section("supply", "the rails: `vdd` (V), optionally `vss`")?)?;
     let load = root.required_section("load", "the load: `rl` (ohms)")?;
     let rl_ohm = resistance(&load.required_num("rl", "the load resistance, ohms")?)?;
     let input = root.required_section("input", "the input requirement: `zin_min` (ohms)")?;
@@ -89,12 +94,21 @@ pub(crate) fn validate(text: &str, classes: &[DeviceClass]) -> Result<ValidSpec,
         }
     };
     let headroom = root.required_section("headroom", "the headroom: `vds_min` (V)")?;
-    let vds = headroom.required_num("vds_min", "the minimum drain–source voltage at every corner, volts")?;
-    vds.check(vds.v >= 0.0, "must be at least 0 V (saturation is checked separately)")?;
+    let vds = headroom.required_num(
+        "vds_min",
+        "the minimum drain–source voltage at every corner, volts",
+    )?;
+    vds.check(
+        vds.v >= 0.0,
+        "must be at least 0 V (saturation is checked separately)",
+    )?;
     let span = supply.vdd_v - supply.vss_v;
     vds.check(
         vds.v < span,
-        &format!("must be less than the supply span vdd − vss = {span:?} V"),
+        &format!(
+            "must be less than the supply span vdd − vss = {} V",
+            format_value(span)
+        ),
     )?;
     let limits = match root.section("limits")? {
         None => Limits::default(),
@@ -128,9 +142,9 @@ pub(crate) fn validate(text: &str, classes: &[DeviceClass]) -> Result<ValidSpec,
     zin.check(
         zin_min_ohm <= parts.r_max_ohm,
         &format!(
-            "must not exceed the largest resistor `parts.range` allows ({:?} Ω): no bias \
+            "must not exceed the largest resistor `parts.range` allows ({} Ω): no bias \
              network made of those parts can reach it",
-            parts.r_max_ohm
+            format_value(parts.r_max_ohm)
         ),
     )?;
     Ok(ValidSpec {

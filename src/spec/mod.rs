@@ -5,6 +5,15 @@
 //! nothing outside this module sees them.
 //!
 //! This module does no file I/O: text comes in, a checked value goes out.
+//!
+//! Defaults when a key is absent: `name` "", `polarity` any, `vss` 0 V,
+//! supply `tolerance` 0, `source_resistance` 0 Ω, limits and `f_low` none,
+//! `[parts] series` E24 with its customary tolerance (`tolerance` → `None`),
+//! `range` 10 Ω–10 MΩ, `lambda` 0, a JFET's `vgs_max` 0 V. Required:
+//! `[target] gain` (or `gain_db`) and `tolerance`, `[supply] vdd`,
+//! `[load] rl`, `[input] zin_min`, `[headroom] vds_min`, and `[device]`
+//! with `family` and its parameters or `class`. The sanity bounds are the
+//! `MAX_*`/`MIN_*` constants re-exported here.
 
 mod device_spec;
 pub mod error;

@@ -99,8 +99,8 @@ pub(crate) struct DesignArgs {
     #[arg(long, value_enum, default_value_t)]
     pub(crate) prefer: PreferArg,
     /// How many designs to list.
-    #[arg(long, default_value_t = 10, value_parser = clap::value_parser!(u16).range(1..=1000).map(|v| v as usize))]
-    pub(crate) top: usize,
+    #[arg(long, default_value_t = 10, value_parser = clap::value_parser!(u16).range(1..=1000))]
+    pub(crate) top: u16,
     /// Search method.
     #[arg(long, value_enum, default_value_t)]
     pub(crate) search: SearchArg,

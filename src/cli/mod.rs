@@ -175,7 +175,7 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     let opts = Options {
         nominal_only: a.nominal,
         prefer: a.prefer.into(),
-        top: a.top,
+        top: usize::from(a.top),
         method: a.search.into(),
         ..Options::default()
     };

@@ -17,6 +17,9 @@
 //! This module must not know about circuits or topologies.
 
 pub mod classes;
+pub mod input;
+
+pub use input::{DeviceInput, ParamError};
 
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -412,10 +415,10 @@ impl Device {
         const SLACK: f64 = 1e-9;
         let hi = self
             .vgs_max_v
-            .is_none_or(|m| vgs_v <= m + SLACK * m.abs().max(1.0));
+            .map_or(true, |m| vgs_v <= m + SLACK * m.abs().max(1.0));
         let lo = self
             .vgs_min_v
-            .is_none_or(|m| vgs_v >= m - SLACK * m.abs().max(1.0));
+            .map_or(true, |m| vgs_v >= m - SLACK * m.abs().max(1.0));
         hi && lo
     }
 }

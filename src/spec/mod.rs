@@ -5,10 +5,66 @@
 //! nothing outside this module sees them.
 //!
 //! This module does no file I/O: text comes in, a checked value goes out.
+//!
+//! Defaults when a key is absent: `name` "", `polarity` any, `vss` 0 V,
+//! supply `tolerance` 0, `source_resistance` 0 Ω, limits and `f_low` none,
+//! `[parts] series` E24 with its customary tolerance (`tolerance` → `None`),
+//! `range` 10 Ω–10 MΩ, `lambda` 0, a JFET's `vgs_max` 0 V. Required:
+//! `[target] gain` (or `gain_db`) and `tolerance`, `[supply] vdd`,
+//! `[load] rl`, `[input] zin_min`, `[headroom] vds_min`, and `[device]`
+//! with `family` and its parameters or `class`. The sanity bounds are the
+//! `MAX_*`/`MIN_*` constants re-exported here.
+
+mod device_spec;
+pub mod error;
+mod fields;
+mod raw;
+mod validate;
+
+pub use error::SpecError;
+pub use validate::{
+    DEFAULT_R_RANGE_OHM, DEFAULT_SERIES, F_LOW_MAX_HZ, I_MAX_A, K_MAX_A_PER_V2, MAX_GAIN, MIN_GAIN,
+    P_MAX_W, R_MAX_OHM, R_MIN_OHM, V_MAX_V,
+};
 
 use crate::catalog::ESeries;
+use crate::device::classes::{self, DeviceClass};
 use crate::device::Device;
 use serde::Serialize;
+
+/// Parse and check a specification, with `class = "…"` looked up in the
+/// built-in device classes (`catalogs/devices.toml`).
+///
+/// ```
+/// let text = r#"
+/// [target]
+/// gain = 0.8
+/// tolerance = 0.2
+/// [supply]
+/// vdd = 12
+/// [load]
+/// rl = "10k"
+/// [input]
+/// zin_min = "1M"
+/// [headroom]
+/// vds_min = 2
+/// [device]
+/// class = "n-jfet-low-idss"
+/// "#;
+/// let spec = gatewright::spec::parse(text).unwrap();
+/// assert_eq!(spec.rl_ohm, 10e3);
+/// assert_eq!(spec.parts.r_max_ohm, 10e6); // default range 10 Ω–10 MΩ
+/// ```
+pub fn parse(text: &str) -> Result<ValidSpec, SpecError> {
+    let classes = classes::builtin().map_err(|e| SpecError::Classes(e.to_string()))?;
+    parse_with(text, &classes)
+}
+
+/// As [`parse`], with the device classes given by the caller (for example a
+/// user's own class file read with [`classes::parse`]).
+pub fn parse_with(text: &str, classes: &[DeviceClass]) -> Result<ValidSpec, SpecError> {
+    validate::validate(text, classes)
+}
 
 /// Sign of the mid-band gain the engineer wants.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]

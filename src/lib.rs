@@ -23,3 +23,4 @@ pub mod netlist;
 pub mod spec;
 pub mod topology;
 pub mod units;
+pub mod verify;

@@ -154,7 +154,9 @@ pub(crate) fn solve(
             continue;
         }
         match e {
-            Element::Resistor { a: p, b: q, ohms, .. } => {
+            Element::Resistor {
+                a: p, b: q, ohms, ..
+            } => {
                 admit(&mut a, *p, *q, Complex64::new(1.0 / ohms, 0.0));
             }
             Element::Capacitor {
@@ -202,10 +204,7 @@ pub(crate) fn solve(
     let mut sources = Vec::new();
     for (i, e) in net.elements.iter().enumerate() {
         if let Element::VoltageSource { name, .. } = e {
-            let current = kept
-                .iter()
-                .position(|k| k.0 == i)
-                .map(|k| -x[n_v + k]);
+            let current = kept.iter().position(|k| k.0 == i).map(|k| -x[n_v + k]);
             sources.push((name.clone(), current));
         }
     }

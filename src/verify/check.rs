@@ -60,10 +60,20 @@ pub(crate) fn validate(net: &Netlist) -> Result<(), SolveError> {
             Element::Capacitor { a, b, farads, .. } => {
                 node_ok(net, name, "a", *a)?;
                 node_ok(net, name, "b", *b)?;
-                value_ok(name, "farads", *farads, *farads > 0.0, "must be finite and > 0")?;
+                value_ok(
+                    name,
+                    "farads",
+                    *farads,
+                    *farads > 0.0,
+                    "must be finite and > 0",
+                )?;
             }
             Element::VoltageSource {
-                pos, neg, dc_v, ac_v, ..
+                pos,
+                neg,
+                dc_v,
+                ac_v,
+                ..
             } => {
                 node_ok(net, name, "pos", *pos)?;
                 node_ok(net, name, "neg", *neg)?;
@@ -76,9 +86,21 @@ pub(crate) fn validate(net: &Netlist) -> Result<(), SolveError> {
                 node_ok(net, name, "s", *s)?;
                 value_ok(name, "law.vto_v", law.vto_v, true, "must be finite")?;
                 let k = law.k_a_per_v2;
-                value_ok(name, "law.k_a_per_v2", k, k >= 0.0, "must be finite and >= 0")?;
+                value_ok(
+                    name,
+                    "law.k_a_per_v2",
+                    k,
+                    k >= 0.0,
+                    "must be finite and >= 0",
+                )?;
                 let lam = law.lambda_per_v;
-                value_ok(name, "law.lambda_per_v", lam, lam >= 0.0, "must be finite and >= 0")?;
+                value_ok(
+                    name,
+                    "law.lambda_per_v",
+                    lam,
+                    lam >= 0.0,
+                    "must be finite and >= 0",
+                )?;
             }
         }
     }

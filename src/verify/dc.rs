@@ -182,9 +182,9 @@ impl<'a> System<'a> {
             }
         }
         if gmin > 0.0 {
-            for r in 0..self.n_v {
-                a.f[r] += gmin * x[r];
-                a.scale[r] += gmin * x[r].abs();
+            for (r, v) in x.iter().take(self.n_v).enumerate() {
+                a.f[r] += gmin * v;
+                a.scale[r] += gmin * v.abs();
                 a.j[(r, r)] += gmin;
             }
         }
@@ -225,7 +225,10 @@ impl<'a> System<'a> {
             stats.residual = self.residual(&a).0;
             let rhs = DVector::from_iterator(a.f.len(), a.f.iter().map(|f| -f));
             let dx = solve(a.j, rhs).ok_or(Stop::Singular)?;
-            let max_dv = dx.iter().take(self.n_v).fold(0.0_f64, |m, d| m.max(d.abs()));
+            let max_dv = dx
+                .iter()
+                .take(self.n_v)
+                .fold(0.0_f64, |m, d| m.max(d.abs()));
             let alpha = if max_dv > opts.max_step_v {
                 opts.max_step_v / max_dv
             } else {

@@ -118,12 +118,26 @@ mod tests {
     fn derivatives_match_central_differences_in_both_modes() {
         let l = law();
         let h = 1e-6;
-        for (vgs, vds) in [(-1.0, 3.0), (-1.0, 0.4), (0.5, -0.7), (-1.0, -4.0), (0.0, -0.2)] {
+        for (vgs, vds) in [
+            (-1.0, 3.0),
+            (-1.0, 0.4),
+            (0.5, -0.7),
+            (-1.0, -4.0),
+            (0.0, -0.2),
+        ] {
             let e = eval(&l, vgs, vds);
             let gm = (eval(&l, vgs + h, vds).id_a - eval(&l, vgs - h, vds).id_a) / (2.0 * h);
             let gds = (eval(&l, vgs, vds + h).id_a - eval(&l, vgs, vds - h).id_a) / (2.0 * h);
-            assert!((gm - e.gm_s).abs() < 1e-9, "gm at {vgs},{vds}: {gm} vs {}", e.gm_s);
-            assert!((gds - e.gds_s).abs() < 1e-9, "gds at {vgs},{vds}: {gds} vs {}", e.gds_s);
+            assert!(
+                (gm - e.gm_s).abs() < 1e-9,
+                "gm at {vgs},{vds}: {gm} vs {}",
+                e.gm_s
+            );
+            assert!(
+                (gds - e.gds_s).abs() < 1e-9,
+                "gds at {vgs},{vds}: {gds} vs {}",
+                e.gds_s
+            );
         }
     }
 

@@ -10,9 +10,9 @@ use num_complex::Complex64;
 fn signal_index(net: &Netlist) -> Result<usize, SolveError> {
     net.elements
         .iter()
-        .position(|e| {
-            matches!(e, Element::VoltageSource { name, .. } if *name == net.signal_source)
-        })
+        .position(
+            |e| matches!(e, Element::VoltageSource { name, .. } if *name == net.signal_source),
+        )
         .ok_or_else(|| SolveError::MissingSource {
             name: net.signal_source.clone(),
         })

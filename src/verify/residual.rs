@@ -32,12 +32,11 @@ pub fn kcl_residuals(net: &Netlist, dc: &DcSolution) -> Result<Vec<f64>, SolveEr
             }
             Element::Capacitor { .. } => {}
             Element::VoltageSource { name, pos, neg, .. } => {
-                let op = sources
-                    .next()
-                    .filter(|s| s.name == *name)
-                    .ok_or_else(|| SolveError::Mismatch {
+                let op = sources.next().filter(|s| s.name == *name).ok_or_else(|| {
+                    SolveError::Mismatch {
                         what: format!("no current for source `{name}`"),
-                    })?;
+                    }
+                })?;
                 // The source delivers current out of `pos` into the circuit.
                 out[*pos] -= op.delivered_a;
                 out[*neg] += op.delivered_a;

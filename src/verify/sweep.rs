@@ -12,7 +12,11 @@ const MAX_POINTS_PER_DECADE: usize = 1000;
 /// Widest sweep, decades.
 const MAX_DECADES: f64 = 24.0;
 
-fn check_range(f_start_hz: f64, f_stop_hz: f64, points_per_decade: usize) -> Result<(), SolveError> {
+fn check_range(
+    f_start_hz: f64,
+    f_stop_hz: f64,
+    points_per_decade: usize,
+) -> Result<(), SolveError> {
     if !(f_start_hz.is_finite() && f_start_hz > 0.0) {
         return Err(SolveError::InvalidFrequency {
             field: "f_start_hz",

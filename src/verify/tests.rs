@@ -305,7 +305,11 @@ fn rc_high_pass_response_and_corner() {
         let m = small_signal(&n, &dc, Freq::Hz(f)).unwrap();
         let wrc = Complex64::new(0.0, 2.0 * std::f64::consts::PI * f * r * c);
         let want = wrc / (1.0 + wrc);
-        assert!((m.gain - want).norm() < 1e-12, "{f} Hz: {} vs {want}", m.gain);
+        assert!(
+            (m.gain - want).norm() < 1e-12,
+            "{f} Hz: {} vs {want}",
+            m.gain
+        );
         let zc = 1.0 / Complex64::new(0.0, 2.0 * std::f64::consts::PI * f * c);
         assert!((m.zout_ohm - zc).norm() < 1e-9 * zc.norm());
     }
@@ -347,7 +351,11 @@ fn source_bypass_pole_and_zero() {
         let shape = Complex64::new(wz, w) / Complex64::new(wp, w);
         let g = small_signal(&n, &dc, Freq::Hz(f)).unwrap().gain;
         // The 1 F coupling capacitors move the result by ~1e-9 relative.
-        assert!((g - mid * shape).norm() < 1e-6 * mid.norm(), "{f}: {g} vs {}", mid * shape);
+        assert!(
+            (g - mid * shape).norm() < 1e-6 * mid.norm(),
+            "{f}: {g} vs {}",
+            mid * shape
+        );
     }
 }
 

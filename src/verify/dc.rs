@@ -28,6 +28,8 @@ const VTOL_V: f64 = 1e-12;
 /// Rounding floor multipliers (a few units in the last place).
 const RESIDUAL_ULPS: f64 = 16.0 * f64::EPSILON;
 const UPDATE_ULPS: f64 = 4.0 * f64::EPSILON;
+/// Most source-stepping steps (successful or not) before giving up.
+const MAX_SOURCE_STEPS: usize = 1000;
 
 struct Source {
     elem: usize,
@@ -265,7 +267,11 @@ impl<'a> System<'a> {
         // With every source at zero the all-zero state is the solution.
         let mut x = vec![0.0; self.size()];
         let (mut level, mut step) = (0.0_f64, 0.1_f64);
-        while level < 1.0 {
+        // A bound on the number of steps, so a hopeless ramp ends.
+        for _ in 0..MAX_SOURCE_STEPS {
+            if level >= 1.0 {
+                return Ok(x);
+            }
             let target = (level + step).min(1.0);
             let mut trial = x.clone();
             match self.newton(&mut trial, target, 0.0, opts, stats) {
@@ -282,7 +288,11 @@ impl<'a> System<'a> {
                 }
             }
         }
-        Ok(x)
+        if level >= 1.0 {
+            Ok(x)
+        } else {
+            Err(Stop::Iterations)
+        }
     }
 
     fn gmin_stepping(&self, opts: &DcOptions, stats: &mut Stats) -> Result<Vec<f64>, Stop> {

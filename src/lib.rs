@@ -28,3 +28,4 @@ pub mod report;
 pub mod spec;
 pub mod topology;
 pub mod units;
+pub mod verify;

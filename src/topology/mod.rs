@@ -244,12 +244,19 @@ fn quadratic_roots(qa: f64, qb: f64, qc: f64) -> Vec<f64> {
 }
 
 /// Unique root of `F(ID) = ID − law.id(a − b·ID, c − d·ID)` on
-/// `[0, law.id(a, c)]`, by Newton steps kept inside a shrinking bracket.
+/// `[0, min(law.id(a, c), c/d)]`, by Newton steps kept inside a shrinking
+/// bracket. The bound `c/d` keeps VDS >= 0: below zero the law's triode
+/// continuation times `(1 + λ·VDS)` is no longer monotonic, and F has
+/// spurious roots there (e.g. VDS ≈ −300 V for a strongly driven divider
+/// stage with λ = 0.01). At `c/d` the device current is 0, so F > 0.
 fn newton_bracketed(law: &SquareLaw, a: f64, b: f64, c: f64, d: f64, start: f64) -> f64 {
     let f = |i: f64| i - law.id(a - b * i, c - d * i);
     let df = |i: f64| 1.0 + b * law.gm(a - b * i, c - d * i) + d * law.gds(a - b * i, c - d * i);
     let mut lo = 0.0;
     let mut hi = law.id(a, c);
+    if d > 0.0 {
+        hi = hi.min(c / d);
+    }
     if hi <= 0.0 {
         return 0.0;
     }
@@ -446,6 +453,33 @@ mod tests {
         let kcl = (10.0 - op.vds_v) / 10e3 - l.id(0.0, op.vds_v);
         assert!(kcl.abs() < 1e-15, "{kcl}");
         assert!(op.vds_v > 0.0 && op.vds_v < 4.0);
+    }
+
+    // Found by the verify property test: a divider stage driven hard into
+    // triode with λ > 0 used to return a root at VDS ≈ −298 V (ID 0.331 A);
+    // the nodal solver's answer is ID = 39.88 mA at VDS = 4.95 V.
+    #[test]
+    fn lambda_triode_root_keeps_vds_non_negative() {
+        let l = law(
+            -3.935520168645144,
+            9.18817770710383e-5,
+            0.010338515931683015,
+        );
+        let vdd = 46.47763798526103;
+        let (r1, r2) = (10520.413873617323, 471025.7309806593);
+        let net = BiasNetwork {
+            gate: Gate::Fixed(vdd * r2 / (r1 + r2)),
+            source_rail_v: 0.0,
+            rs_ohm: 131.68353963260512,
+            drain_rail_v: vdd,
+            rd_ohm: 909.6213111044086,
+        };
+        let op = net.solve(&l);
+        assert!(op.vds_v >= 0.0, "VDS {}", op.vds_v);
+        assert_eq!(op.region, Region::Triode);
+        let kcl = op.id_a - l.id(op.vgs_v, op.vds_v);
+        assert!(kcl.abs() < 1e-15, "{kcl}");
+        assert!((op.id_a - 0.039876643878).abs() < 1e-11, "{}", op.id_a);
     }
 
     #[test]

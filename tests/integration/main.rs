@@ -5,3 +5,4 @@ mod eseries;
 /// Exported decks run through ngspice and compared with the closed forms.
 mod ngspice;
 mod spec_errors;
+mod verify_props;

@@ -2,7 +2,7 @@
 //!
 //! Layers, each using only those above it:
 //! `units` → `catalog` → `device` → `spec`, `netlist` → `topology` →
-//! `analysis` → `search` → `verify` → `rank` → `report` → `cli`.
+//! `analysis` → `search` → `verify` → `rank` → `ratings` → `report` → `cli`.
 //!
 //! ```
 //! use gatewright::topology::{by_id, evaluate, Rails};
@@ -22,6 +22,7 @@ pub mod cli;
 pub mod device;
 pub mod netlist;
 pub mod rank;
+pub mod ratings;
 pub mod search;
 pub mod report;
 pub mod spec;

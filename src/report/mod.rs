@@ -1,4 +1,6 @@
 //! Output formats. One file per format; each turns results into text and
 //! never writes files or computes physics.
 
+pub mod bom;
 pub mod spice;
+pub mod svg;

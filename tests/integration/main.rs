@@ -4,3 +4,5 @@
 mod eseries;
 /// Exported decks run through ngspice and compared with the closed forms.
 mod ngspice;
+/// Schematic, bias window, frequency response and BOM outputs.
+mod pictures;

@@ -196,6 +196,31 @@ pub fn resistor_duty(
     duty
 }
 
+/// Standard capacitor voltage ratings, volts, ascending (from memory: the
+/// common electrolytic and film working voltages).
+pub const CAPACITOR_VOLTAGES_V: [f64; 13] = [
+    6.3, 10.0, 16.0, 25.0, 35.0, 50.0, 63.0, 100.0, 160.0, 250.0, 400.0, 450.0, 630.0,
+];
+
+/// Margin on a capacitor's voltage, dimensionless: rated at least this many
+/// times the voltage it can see (common practice).
+pub const CAPACITOR_MARGIN: f64 = 1.5;
+
+/// Voltage rating to buy for a coupling or bypass capacitor, volts: the
+/// smallest standard rating at least `CAPACITOR_MARGIN` times `span_v`, the
+/// most it can see (a coupling capacitor can see the whole supply at
+/// power-up, REFERENCE §5, common practice). `None` above 630 V / 1.5.
+pub fn capacitor_rating_v(span_v: f64) -> Option<f64> {
+    if !span_v.is_finite() {
+        return None;
+    }
+    let need = span_v.abs() * CAPACITOR_MARGIN;
+    CAPACITOR_VOLTAGES_V
+        .iter()
+        .copied()
+        .find(|&r| need <= r * (1.0 + SLACK))
+}
+
 /// Largest voltage between any two conductors, volts: VDD − VSS at the top
 /// of the supply tolerance.
 pub fn supply_span_v(p: &Problem) -> f64 {
@@ -392,6 +417,9 @@ mod tests {
         assert_eq!(rating_for(2.5), Some(5.0));
         assert_eq!(rating_for(2.6), None);
         assert_eq!(rating_for(f64::NAN), None);
+        assert_eq!(capacitor_rating_v(15.0), Some(25.0));
+        assert_eq!(capacitor_rating_v(10.0), Some(16.0));
+        assert_eq!(capacitor_rating_v(500.0), None);
         assert_eq!(rating_text(0.0625), "1/16 W");
         assert_eq!(rating_text(0.25), "1/4 W");
         assert_eq!(rating_text(2.0), "2 W");
@@ -480,17 +508,30 @@ mod tests {
     // ripple-free DC. Both limits are inclusive (60 V and 120 V are inside).
     #[test]
     fn supply_cautions_follow_the_selv_and_elv_limits() {
-        assert!(supply_cautions(60.0).is_empty(), "{:?}", supply_cautions(60.0));
+        assert!(
+            supply_cautions(60.0).is_empty(),
+            "{:?}",
+            supply_cautions(60.0)
+        );
         let c = supply_cautions(60.5);
         assert_eq!(c.len(), 1, "{c:?}");
-        assert!(c[0].contains("60 V DC") && c[0].contains("IEC 60950-1"), "{c:?}");
-        assert!(c[0].contains("IEC 62368-1") && c[0].ends_with(DEFER), "{c:?}");
+        assert!(
+            c[0].contains("60 V DC") && c[0].contains("IEC 60950-1"),
+            "{c:?}"
+        );
+        assert!(
+            c[0].contains("IEC 62368-1") && c[0].ends_with(DEFER),
+            "{c:?}"
+        );
         let c = supply_cautions(120.0);
         assert_eq!(c.len(), 1, "{c:?}");
         assert!(c[0].contains("SELV"), "{c:?}");
         let c = supply_cautions(121.0);
         assert_eq!(c.len(), 1, "{c:?}");
-        assert!(c[0].contains("IEC 61140") && c[0].starts_with("DANGER"), "{c:?}");
+        assert!(
+            c[0].contains("IEC 61140") && c[0].starts_with("DANGER"),
+            "{c:?}"
+        );
         assert!(c[0].ends_with(DEFER));
     }
 
@@ -519,9 +560,15 @@ mod tests {
         wc.vgs_max_v = 0.2;
         let c = cautions(&p, &wc, &[]);
         assert_eq!(c.len(), 3, "{c:?}");
-        assert!(c[0].starts_with("CAUTION: Q1") && c[0].contains("20 mW"), "{c:?}");
+        assert!(
+            c[0].starts_with("CAUTION: Q1") && c[0].contains("20 mW"),
+            "{c:?}"
+        );
         assert!(c[1].contains("25 V VDS rating"), "{c:?}");
-        assert!(c[2].contains("forward-biased") && c[2].contains("200 mV"), "{c:?}");
+        assert!(
+            c[2].contains("forward-biased") && c[2].contains("200 mV"),
+            "{c:?}"
+        );
         wc.pd_max_w = 0.021;
         wc.vgs_max_v = 0.0;
         let c = cautions(&p, &wc, &[]);

@@ -72,7 +72,7 @@ pub fn bom_csv(rows: &[BomRow]) -> String {
 /// A relative tolerance as `±5%` (`±0.5%`), empty for 0.
 pub fn tolerance_text(tol: f64) -> String {
     if tol > 0.0 && tol.is_finite() {
-        format!("±{}%", crate::units::format_sig(tol * 100.0, 3))
+        format!("±{}%", crate::units::round_sig(tol * 100.0, 3))
     } else {
         String::new()
     }
@@ -102,11 +102,15 @@ pub fn bom_rows(
                 let rating = r
                     .rating_w
                     .map_or_else(|| "over 5 W".to_string(), rating_text);
-                let mut notes = format!(
-                    "worst {} at {} DC",
-                    with_unit(x.p_worst_w, "W"),
-                    with_unit(x.v_worst_v, "V")
-                );
+                let mut notes = if x.p_worst_w > 0.0 {
+                    format!(
+                        "worst {} at {} DC",
+                        with_unit(x.p_worst_w, "W"),
+                        with_unit(x.v_worst_v, "V")
+                    )
+                } else {
+                    "no DC current".to_string()
+                };
                 if !r.voltage_ok {
                     notes.push_str("; check working voltage");
                 }

@@ -5,16 +5,16 @@
 //! With `GATEWRIGHT_PICTURES=DIR` set, each rendered picture is also saved as
 //! a PNG in DIR for a person to look at.
 
-use gatewright::analysis::Problem;
+use gatewright::analysis::{worst_case, Problem};
 use gatewright::catalog::ESeries;
 use gatewright::device::{Device, Family, ParamRange, Params, Strength};
-// METRICS
-// DUTY
-// BOM
+use gatewright::rank::Metrics;
+use gatewright::ratings::resistor_duty;
+use gatewright::report::bom::{bom_csv, bom_rows, HEADER};
 use gatewright::report::svg::bias::bias_svg;
 use gatewright::report::svg::response::response_svg;
 use gatewright::report::svg::schematic::schematic_svg;
-// DESIGN
+use gatewright::search::Design;
 use gatewright::spec::{CatalogChoice, Limits, Parts, Polarity, Supply, Target, ValidSpec};
 use gatewright::topology::{by_id, TOPOLOGIES};
 use gatewright::units::format_value;
@@ -91,7 +91,7 @@ fn case(
     &'static dyn gatewright::topology::Topology,
     Vec<f64>,
 ) {
-    let t = by_id(id).unwrap();
+    let t = by_id(id).unwrap_or_else(|| panic!("no topology {id}"));
     let (family, vdd, vss, values): (Family, f64, f64, Vec<f64>) = match id {
         "zero-bias" => (Family::NDepletionMosfet, 12.0, 0.0, vec![1e6, 1e3]),
         "self-bias" => (Family::NJfet, 15.0, 0.0, vec![1e6, 1e3, 3.3e3]),
@@ -140,12 +140,16 @@ fn fonts() -> &'static usvg::Options<'static> {
 fn render(svg: &str, name: &str) -> usize {
     let tree = usvg::Tree::from_str(svg, fonts()).unwrap_or_else(|e| panic!("{name}: {e}"));
     let size = tree.size().to_int_size();
-    let mut pixmap = tiny_skia::Pixmap::new(size.width(), size.height()).unwrap();
+    let mut pixmap = tiny_skia::Pixmap::new(size.width(), size.height())
+        .unwrap_or_else(|| panic!("{name}: empty picture size"));
     resvg::render(&tree, tiny_skia::Transform::default(), &mut pixmap.as_mut());
     if let Ok(dir) = std::env::var("GATEWRIGHT_PICTURES") {
-        std::fs::create_dir_all(&dir).unwrap();
-        pixmap.save_png(format!("{dir}/{name}.png")).unwrap();
-        std::fs::write(format!("{dir}/{name}.svg"), svg).unwrap();
+        let fail = |e: &dyn std::fmt::Display| panic!("{name}: cannot save in {dir}: {e}");
+        std::fs::create_dir_all(&dir).unwrap_or_else(|e| fail(&e));
+        pixmap
+            .save_png(format!("{dir}/{name}.png"))
+            .unwrap_or_else(|e| fail(&e));
+        std::fs::write(format!("{dir}/{name}.svg"), svg).unwrap_or_else(|e| fail(&e));
     }
     // Every pixel must be opaque (white background), and enough of them
     // must be drawn on.
@@ -284,4 +288,96 @@ fn response_picture_marks_the_three_db_line_and_corner() {
         assert!(has_text(&svg, label), "no {label}: {:?}", texts(&svg));
     }
     snapshot("response", &svg);
+}
+
+/// Self-bias current on the strongest curve (IDSS 12 mA, VGS(off) −6 V)
+/// for a given RS, from Shockley's law ID = IDSS·(1 − RS·ID/|VP|)² by
+/// bisection: an oracle independent of the topology code.
+fn shockley_self_bias(rs: f64) -> f64 {
+    let (mut lo, mut hi) = (0.0, 6.0 / rs);
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if mid - 12e-3 * (1.0 - rs * mid / 6.0).powi(2) > 0.0 {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    lo
+}
+
+// Self bias, RS 1 kΩ, RD 3.3 kΩ, ±5 %, VDD 20 V. The worst current is on the
+// strongest curve with RS at 950 Ω (3.10 mA); RD at 3465 Ω then dissipates
+// 33.4 mW: twice that is 66.8 mW, past 1/16 W, so 1/10 W (common practice,
+// REFERENCE §6). RS's worst is 9.15 mW at 950 Ω: 1/16 W.
+#[test]
+fn bom_lists_every_part_with_ratings_and_reads_back_as_csv() {
+    let p = Problem::new(&spec(Family::NJfet, 20.0, 0.0));
+    let t = by_id("self-bias").unwrap();
+    let values = vec![1e6, 1e3, 3.3e3];
+    let tolerances = vec![0.05; 3];
+    let wc = worst_case(&p, t, &values, &tolerances);
+    let design = Design {
+        topology: t,
+        topology_index: 1,
+        values: values.clone(),
+        tolerances,
+        worst: wc,
+        metrics: Metrics::new(&p.spec, &wc, 3),
+        score: 0.5,
+    };
+    let duty = resistor_duty(&p, t, &values, &design.tolerances);
+    let caps: Vec<(String, f64)> = vec![
+        ("C_IN".into(), 100e-9),
+        ("C_OUT".into(), 2.2e-6),
+        ("C_S".into(), 47e-6),
+    ];
+    let text = bom_csv(&bom_rows(&p, &design, "E24", &duty, &caps));
+    assert_eq!(text.lines().next(), Some(HEADER));
+    let mut reader = csv::Reader::from_reader(text.as_bytes());
+    let header: Vec<String> = reader.headers().unwrap().iter().map(String::from).collect();
+    assert_eq!(
+        header,
+        [
+            "designator",
+            "value",
+            "series",
+            "tolerance",
+            "rating",
+            "quantity",
+            "notes"
+        ]
+    );
+    let rows: Vec<Vec<String>> = reader
+        .records()
+        .map(|r| r.unwrap().iter().map(String::from).collect())
+        .collect();
+    let names: Vec<&str> = rows.iter().map(|r| r[0].as_str()).collect();
+    assert_eq!(names, ["RG", "RS", "RD", "C_IN", "C_OUT", "C_S", "Q1"]);
+    let id = shockley_self_bias(950.0);
+    let p_rd = id * id * 3465.0;
+    assert!((duty[2].p_worst_w - p_rd).abs() < 1e-9 * p_rd);
+    assert_eq!(rows[2][1..6], ["3.3kΩ", "E24", "±5%", "1/10 W", "1"]);
+    assert_eq!(
+        rows[2][6],
+        format!(
+            "worst {} mW at {} V DC",
+            fmt3(p_rd * 1e3),
+            fmt3(id * 3465.0)
+        )
+    );
+    assert_eq!(rows[1][4], "1/16 W");
+    assert_eq!(rows[0][4], "1/16 W");
+    // Capacitors: 1.5 × 20 V = 30 V -> 35 V (common practice, from memory).
+    assert_eq!(rows[3][1..5], ["100nF", "", "", "35 V"]);
+    assert_eq!(rows[5][1], "47uF");
+    assert_eq!(rows[6][1], "n-channel JFET (n-jfet)");
+    assert_eq!(rows[6][2], "test-class");
+    assert_eq!(rows[6][4], "VDS >= 20 V");
+    snapshot("bom-self-bias", &text);
+}
+
+/// Three significant figures, as the BOM prints them.
+fn fmt3(x: f64) -> String {
+    gatewright::units::format_sig(x, 3)
 }

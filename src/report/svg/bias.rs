@@ -9,7 +9,9 @@
 //!   black, and the bias lines at every resistor-tolerance extreme, dashed
 //!   grey (nominal rails);
 //! - the operating point at each corner with nominal values, a filled dot
-//!   in the corner's colour, where its curve meets the bias line;
+//!   in the corner's colour, where its curve meets the bias line (hollow,
+//!   and marked "triode" or "cut off" in the legend, when the device is out
+//!   of saturation there and so off its drawn curve);
 //! - the allowed drain-current window, when given, as a shaded band across
 //!   the plot (for example from `id_max` and the lowest current the gain
 //!   needs).
@@ -20,7 +22,7 @@
 
 use super::{colour, fallback};
 use crate::analysis::{tolerance_extremes, Problem};
-use crate::device::SquareLaw;
+use crate::device::{Region, SquareLaw};
 use crate::ratings::with_unit;
 use crate::topology::{Gate, OpPoint, Topology};
 use crate::units::format_sig;
@@ -257,10 +259,16 @@ fn draw(root: &DrawingArea<SVGBackend, Shift>, d: &BiasData, title: &str) -> Res
         .map_err(e)?;
     for (i, c) in d.corners.iter().enumerate() {
         let at = (c.op.vgs_v, c.op.id_a * 1e3);
+        // Out of saturation the point is off its saturation curve: hollow.
+        let fill = if c.op.saturated() {
+            rgb(i).filled()
+        } else {
+            WHITE.filled()
+        };
         chart
             .draw_series([
-                Circle::new(at, 5, rgb(i).filled()),
-                Circle::new(at, 5, BLACK.stroke_width(1)),
+                Circle::new(at, 5, fill),
+                Circle::new(at, 5, rgb(i).stroke_width(2)),
             ])
             .map_err(e)?;
     }
@@ -333,7 +341,16 @@ fn draw_legend(
         ))?;
         area.draw(&Circle::new((x + 13, y), 4, rgb(i).filled()))?;
         area.draw(&Text::new(c.label.clone(), (x + 34, y - 7), text.clone()))?;
-        let op = format!("VGS {}, ID {}", volts(c.op.vgs_v), milliamps(c.op.id_a));
+        let region = match c.op.region {
+            Region::Saturation => "",
+            Region::Triode => " (triode)",
+            Region::Cutoff => " (cut off)",
+        };
+        let op = format!(
+            "VGS {}, ID {}{region}",
+            volts(c.op.vgs_v),
+            milliamps(c.op.id_a)
+        );
         area.draw(&Text::new(op, (x + 34, y + 8), small.clone()))?;
         y += 38;
     }

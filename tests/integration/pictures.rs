@@ -2,6 +2,9 @@
 //! real renderer (resvg) and must not come out blank, must carry its
 //! labels, and is pinned by an insta file snapshot (tests/snapshots).
 //!
+//! The ink thresholds hold without any font installed (shapes alone), so a
+//! machine without fonts still passes; a blank picture has none.
+//!
 //! With `GATEWRIGHT_PICTURES=DIR` set, each rendered picture is also saved as
 //! a PNG in DIR for a person to look at.
 
@@ -198,7 +201,7 @@ fn every_topology_schematic_renders_with_its_labels() {
             .collect();
         let svg = schematic_svg(&p, t, &values, &caps, "bench preamp");
         let inked = render(&svg, &format!("schematic-{}", t.id()));
-        assert!(inked > 3000, "{}: only {inked} dark pixels", t.id());
+        assert!(inked > 4000, "{}: only {inked} dark pixels", t.id());
         for (part, v) in t.parts().iter().zip(&values) {
             if *v > 0.0 {
                 assert!(has_text(&svg, part), "{}: no {part}", t.id());
@@ -245,7 +248,7 @@ fn bias_pictures_render_with_curves_axes_and_legend() {
             "bench preamp: bias",
         );
         let inked = render(&svg, &format!("bias-{id}"));
-        assert!(inked > 5000, "{id}: only {inked} dark pixels");
+        assert!(inked > 8000, "{id}: only {inked} dark pixels");
         for label in [
             "VGS (V)",
             "ID (mA)",

@@ -59,7 +59,11 @@ impl Problem {
             return vec![self.rails];
         }
         let ends = [1.0 - t, 1.0 + t];
-        let vss_ends: &[f64] = if self.rails.vss_v == 0.0 { &[1.0] } else { &ends };
+        let vss_ends: &[f64] = if self.rails.vss_v == 0.0 {
+            &[1.0]
+        } else {
+            &ends
+        };
         let mut out = Vec::with_capacity(4);
         for a in ends {
             for &b in vss_ends {
@@ -95,7 +99,13 @@ pub struct Point {
 }
 
 /// Evaluate one topology with one set of values at one device law and rails.
-pub fn point(p: &Problem, t: &dyn Topology, values: &[f64], corner: &Corner, rails: &Rails) -> Point {
+pub fn point(
+    p: &Problem,
+    t: &dyn Topology,
+    values: &[f64],
+    corner: &Corner,
+    rails: &Rails,
+) -> Point {
     let eval = evaluate(
         t,
         values,
@@ -220,7 +230,11 @@ pub fn tolerance_extremes(values: &[f64], tolerances: &[f64]) -> Vec<Vec<f64>> {
         let mut v = values.to_vec();
         for (bit, &i) in idx.iter().enumerate() {
             let t = tolerances[i];
-            v[i] *= if mask & (1 << bit) != 0 { 1.0 + t } else { 1.0 - t };
+            v[i] *= if mask & (1 << bit) != 0 {
+                1.0 + t
+            } else {
+                1.0 - t
+            };
         }
         out.push(v);
     }
@@ -279,7 +293,10 @@ fn fmt(v: f64, unit: &str) -> String {
 /// The gain window `[lo, hi]` of |gain|, V/V.
 pub fn gain_window(spec: &ValidSpec) -> (f64, f64) {
     let g = spec.target.gain;
-    (g * (1.0 - spec.target.tolerance), g * (1.0 + spec.target.tolerance))
+    (
+        g * (1.0 - spec.target.tolerance),
+        g * (1.0 + spec.target.tolerance),
+    )
 }
 
 /// Requirement ids, in the order [`margins`] and [`assess`] report them.
@@ -315,7 +332,13 @@ pub fn margins(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> Vec<Margin> {
     let (lo, hi) = gain_window(s);
     let g = s.target.gain;
     let mut out = Vec::with_capacity(11);
-    let mut push = |which: usize, margin: f64, pass: bool| out.push(Margin { which, margin, pass });
+    let mut push = |which: usize, margin: f64, pass: bool| {
+        out.push(Margin {
+            which,
+            margin,
+            pass,
+        })
+    };
     push(
         0,
         ((wc.gain_abs_min - lo) / g).min((hi - wc.gain_abs_max) / g),
@@ -388,12 +411,26 @@ pub fn assess(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> Vec<Check> {
                     format!("{}..{}", fmt(wc.gain_abs_min, ""), fmt(wc.gain_abs_max, "")),
                 ),
                 1 => {
-                    let want = if s.target.polarity == Polarity::Inverting { "inverting" } else { "non-inverting" };
-                    let got = if t.non_inverting() { "non-inverting" } else { "inverting" };
+                    let want = if s.target.polarity == Polarity::Inverting {
+                        "inverting"
+                    } else {
+                        "non-inverting"
+                    };
+                    let got = if t.non_inverting() {
+                        "non-inverting"
+                    } else {
+                        "inverting"
+                    };
                     (want.to_string(), got.to_string())
                 }
-                2 => (format!("Zin >= {}", fmt(s.zin_min_ohm, "Ω")), fmt(wc.zin_min_ohm, "Ω")),
-                3 => (format!("VDS >= {}", fmt(s.vds_min_v, "V")), fmt(wc.vds_min_v, "V")),
+                2 => (
+                    format!("Zin >= {}", fmt(s.zin_min_ohm, "Ω")),
+                    fmt(wc.zin_min_ohm, "Ω"),
+                ),
+                3 => (
+                    format!("VDS >= {}", fmt(s.vds_min_v, "V")),
+                    fmt(wc.vds_min_v, "V"),
+                ),
                 4 => (
                     "VDS >= VGS - VGS(off)/VT at every corner".to_string(),
                     if wc.id_min_a > 0.0 {
@@ -419,7 +456,10 @@ pub fn assess(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> Vec<Check> {
                         9 => (d.vds_max_v, wc.vds_max_v, "V"),
                         _ => (d.pd_max_w, wc.pd_max_w, "W"),
                     };
-                    (format!("<= {}", fmt(lim.unwrap_or(f64::NAN), unit)), fmt(got, unit))
+                    (
+                        format!("<= {}", fmt(lim.unwrap_or(f64::NAN), unit)),
+                        fmt(got, unit),
+                    )
                 }
             };
             Check {

@@ -2,7 +2,7 @@
 //!
 //! Layers, each using only those above it:
 //! `units` → `catalog` → `device` → `spec`, `netlist` → `topology` →
-//! `analysis` → `search` → `verify` → `rank` → `report` → `cli`.
+//! `analysis` → `search` → `verify` → `rank` → `ratings` → `report` → `cli`.
 //!
 //! ```
 //! use gatewright::topology::{by_id, evaluate, Rails};
@@ -22,10 +22,11 @@ pub mod cli;
 pub mod device;
 pub mod netlist;
 pub mod rank;
-pub mod search;
-pub mod summary;
+pub mod ratings;
 pub mod report;
+pub mod search;
 pub mod spec;
+pub mod summary;
 pub mod topology;
 pub mod units;
 pub mod verify;

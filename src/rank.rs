@@ -132,17 +132,15 @@ pub fn score(spec: &ValidSpec, m: &Metrics, prefer: Prefer) -> f64 {
 /// Total order: higher score first, then topology order, then values
 /// (ascending, designator by designator).
 pub fn order(a: (f64, usize, &[f64]), b: (f64, usize, &[f64])) -> Ordering {
-    b.0.total_cmp(&a.0)
-        .then(a.1.cmp(&b.1))
-        .then_with(|| {
-            for (x, y) in a.2.iter().zip(b.2) {
-                let o = x.total_cmp(y);
-                if o != Ordering::Equal {
-                    return o;
-                }
+    b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)).then_with(|| {
+        for (x, y) in a.2.iter().zip(b.2) {
+            let o = x.total_cmp(y);
+            if o != Ordering::Equal {
+                return o;
             }
-            a.2.len().cmp(&b.2.len())
-        })
+        }
+        a.2.len().cmp(&b.2.len())
+    })
 }
 
 /// Indices of the Pareto-optimal entries.

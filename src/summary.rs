@@ -77,7 +77,11 @@ impl PointView {
 
 /// Designator → ohms, in a stable (sorted) order.
 pub fn value_map(t: &dyn Topology, values: &[f64]) -> BTreeMap<String, f64> {
-    t.parts().iter().map(|p| p.to_string()).zip(values.iter().copied()).collect()
+    t.parts()
+        .iter()
+        .map(|p| p.to_string())
+        .zip(values.iter().copied())
+        .collect()
 }
 
 /// The result of `analyze`.
@@ -235,10 +239,20 @@ pub struct DesignReport {
 }
 
 /// Build the report view of a search outcome.
-pub fn design_report(full: &Problem, shelf_name: &str, out: &Outcome, cautions: Vec<String>) -> DesignReport {
+pub fn design_report(
+    full: &Problem,
+    shelf_name: &str,
+    out: &Outcome,
+    cautions: Vec<String>,
+) -> DesignReport {
     DesignReport {
         name: full.spec.name.clone(),
-        mode: if out.nominal_only { "nominal" } else { "worst-case" }.to_string(),
+        mode: if out.nominal_only {
+            "nominal"
+        } else {
+            "worst-case"
+        }
+        .to_string(),
         series: shelf_name.to_string(),
         designs: out
             .designs

@@ -19,16 +19,27 @@ pub(crate) struct Loaded {
 
 /// Read and check a specification, and load its catalog.
 pub(crate) fn spec(path: &Path) -> Result<Loaded> {
-    let text = std::fs::read_to_string(path).with_context(|| format!("reading `{}`", path.display()))?;
+    let text =
+        std::fs::read_to_string(path).with_context(|| format!("reading `{}`", path.display()))?;
     let spec = crate::spec::parse(&text).with_context(|| format!("in `{}`", path.display()))?;
     let catalog = match &spec.parts.catalog {
-        CatalogChoice::Series(s) => Catalog::from_series(*s, spec.parts.tolerance, spec.parts.r_min_ohm, spec.parts.r_max_ohm)
-            .with_context(|| format!("in `{}`: `parts.range`", path.display()))?,
+        CatalogChoice::Series(s) => Catalog::from_series(
+            *s,
+            spec.parts.tolerance,
+            spec.parts.r_min_ohm,
+            spec.parts.r_max_ohm,
+        )
+        .with_context(|| format!("in `{}`: `parts.range`", path.display()))?,
         CatalogChoice::StockFile(f) => {
             let base = path.parent().unwrap_or_else(|| Path::new("."));
             let file = base.join(f);
-            let text = std::fs::read_to_string(&file)
-                .with_context(|| format!("in `{}`: `parts.series` = \"{f}\": reading `{}`", path.display(), file.display()))?;
+            let text = std::fs::read_to_string(&file).with_context(|| {
+                format!(
+                    "in `{}`: `parts.series` = \"{f}\": reading `{}`",
+                    path.display(),
+                    file.display()
+                )
+            })?;
             stock::parse(&text).with_context(|| format!("in stock list `{}`", file.display()))?
         }
     };
@@ -38,7 +49,12 @@ pub(crate) fn spec(path: &Path) -> Result<Loaded> {
 impl Loaded {
     /// The shelf inside `[parts] range`.
     pub(crate) fn shelf(&self) -> Shelf {
-        Shelf::new(&self.catalog, self.spec.parts.tolerance, self.spec.parts.r_min_ohm, self.spec.parts.r_max_ohm)
+        Shelf::new(
+            &self.catalog,
+            self.spec.parts.tolerance,
+            self.spec.parts.r_min_ohm,
+            self.spec.parts.r_max_ohm,
+        )
     }
 
     /// Tolerance for a value the user typed: the spec's, else the shelf
@@ -55,7 +71,13 @@ impl Loaded {
             .iter()
             .find(|p| (p.ohms - ohms).abs() <= 1e-9 * ohms)
             .map(|p| p.tolerance)
-            .unwrap_or_else(|| self.catalog.parts.iter().map(|p| p.tolerance).fold(0.0, f64::max))
+            .unwrap_or_else(|| {
+                self.catalog
+                    .parts
+                    .iter()
+                    .map(|p| p.tolerance)
+                    .fold(0.0, f64::max)
+            })
     }
 }
 
@@ -68,7 +90,11 @@ pub(crate) fn values(t: &dyn Topology, text: &str, family: Family) -> Result<Vec
         };
         let name = name.trim();
         let Some(i) = t.index_of(name) else {
-            bail!("`--values`: `{name}` is not a part of {}; its parts are {}", t.id(), t.parts().join(", "));
+            bail!(
+                "`--values`: `{name}` is not a part of {}; its parts are {}",
+                t.id(),
+                t.parts().join(", ")
+            );
         };
         let v = crate::units::parse_value(val).with_context(|| format!("`--values` {name}"))?;
         let zero_ok = t.may_be_zero(i, family);
@@ -82,9 +108,20 @@ pub(crate) fn values(t: &dyn Topology, text: &str, family: Family) -> Result<Vec
             bail!("`--values`: {name} is given twice");
         }
     }
-    let missing: Vec<&str> = t.parts().iter().zip(&out).filter(|(_, v)| v.is_none()).map(|(p, _)| *p).collect();
+    let missing: Vec<&str> = t
+        .parts()
+        .iter()
+        .zip(&out)
+        .filter(|(_, v)| v.is_none())
+        .map(|(p, _)| *p)
+        .collect();
     if !missing.is_empty() {
-        bail!("`--values`: missing {} (a {} needs {})", missing.join(", "), t.id(), t.parts().join(", "));
+        bail!(
+            "`--values`: missing {} (a {} needs {})",
+            missing.join(", "),
+            t.id(),
+            t.parts().join(", ")
+        );
     }
     Ok(out.into_iter().map(|v| v.unwrap_or(0.0)).collect())
 }

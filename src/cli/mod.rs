@@ -80,7 +80,11 @@ fn run(cli: Cli) -> Result<ExitCode> {
                     t.id(),
                     t.parts().join(","),
                     t.summary(),
-                    if t.needs_vss() { " [needs vss < 0]" } else { "" },
+                    if t.needs_vss() {
+                        " [needs vss < 0]"
+                    } else {
+                        ""
+                    },
                     fams.join(", ")
                 ));
             }
@@ -94,7 +98,10 @@ fn run(cli: Cli) -> Result<ExitCode> {
 
 fn snap_cmd(a: args::SnapArgs) -> Result<ExitCode> {
     let series = crate::catalog::ESeries::from_name(&a.series).with_context(|| {
-        format!("`--series` = {}: expected one of E6, E12, E24, E48, E96, E192", a.series)
+        format!(
+            "`--series` = {}: expected one of E6, E12, E24, E48, E96, E192",
+            a.series
+        )
     })?;
     if let Some(ratio_text) = &a.ratio {
         let ratio = crate::units::parse_value(ratio_text).context("`--ratio`")?;
@@ -121,7 +128,8 @@ fn snap_cmd(a: args::SnapArgs) -> Result<ExitCode> {
         if v <= 0.0 {
             bail!("VALUE `{text}` = {v}: a resistance must be greater than 0");
         }
-        let cat = crate::catalog::Catalog::from_series(series, None, (v / 100.0).max(1e-3), v * 100.0)?;
+        let cat =
+            crate::catalog::Catalog::from_series(series, None, (v / 100.0).max(1e-3), v * 100.0)?;
         rows.push(snap::snap_value(&cat, v)?);
     }
     let text = match a.format {
@@ -152,7 +160,10 @@ fn analyze_cmd(a: args::AnalyzeArgs) -> Result<ExitCode> {
         ));
     }
     if t.needs_vss() && loaded.spec.supply.vss_v >= 0.0 {
-        bail!("`--topology` = {}: needs a negative rail; set `supply.vss` below 0 V", t.id());
+        bail!(
+            "`--topology` = {}: needs a negative rail; set `supply.vss` below 0 V",
+            t.id()
+        );
     }
     let view = summary::analysis(&p, t, &values, &tolerances);
     let text = match a.format {
@@ -162,7 +173,9 @@ fn analyze_cmd(a: args::AnalyzeArgs) -> Result<ExitCode> {
             let net = t.netlist(&values, &input);
             report::spice::netlist_to_spice(&net, &format!("gatewright {} nominal", t.id()), &[])
         }
-        Format::Csv => bail!("`--format csv` is for `design`; use table, json or spice with `analyze`"),
+        Format::Csv => {
+            bail!("`--format csv` is for `design`; use table, json or spice with `analyze`")
+        }
         Format::Table => report::table::analysis(&view, t.parts()),
     };
     emit(&text)?;
@@ -193,7 +206,11 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
                 let net = d.topology.netlist(&d.values, &input);
                 s.push_str(&report::spice::netlist_to_spice(
                     &net,
-                    &format!("gatewright design {} {}", report_view.designs.len(), d.topology.id()),
+                    &format!(
+                        "gatewright design {} {}",
+                        report_view.designs.len(),
+                        d.topology.id()
+                    ),
                     &[],
                 ));
                 s.push('\n');

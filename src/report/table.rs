@@ -48,11 +48,34 @@ pub fn analysis(v: &AnalysisView, order: &[&str]) -> String {
     let mut out = String::new();
     let values: Vec<String> = order
         .iter()
-        .map(|d| format!("{d}={}", v.values.get(*d).map_or("?".to_string(), |x| format_value(*x))))
+        .map(|d| {
+            format!(
+                "{d}={}",
+                v.values
+                    .get(*d)
+                    .map_or("?".to_string(), |x| format_value(*x))
+            )
+        })
         .collect();
-    out.push_str(&format!("{} ({}): {}\n", v.topology, v.summary, values.join(" ")));
+    out.push_str(&format!(
+        "{} ({}): {}\n",
+        v.topology,
+        v.summary,
+        values.join(" ")
+    ));
     let mut t = table(vec![
-        "corner", "ID", "VGS", "VDS", "VG", "VS", "VD", "gm", "gain", "Zin", "Zout", "saturated",
+        "corner",
+        "ID",
+        "VGS",
+        "VDS",
+        "VG",
+        "VS",
+        "VD",
+        "gm",
+        "gain",
+        "Zin",
+        "Zout",
+        "saturated",
     ]);
     let mut nominal = v.nominal.clone();
     if v.nominal_is_midpoint {
@@ -67,7 +90,13 @@ pub fn analysis(v: &AnalysisView, order: &[&str]) -> String {
     if v.nominal_is_midpoint {
         out.push_str("note: no typ value given for some device parameter; nominal uses the midpoint of its range\n");
     }
-    let mut c = table(vec!["requirement", "required", "worst case reached", "margin", "holds"]);
+    let mut c = table(vec![
+        "requirement",
+        "required",
+        "worst case reached",
+        "margin",
+        "holds",
+    ]);
     for ch in &v.checks {
         c.add_row(vec![
             ch.name.to_string(),
@@ -80,11 +109,19 @@ pub fn analysis(v: &AnalysisView, order: &[&str]) -> String {
     out.push_str("worst case over every device corner and resistor-tolerance extreme:\n");
     out.push_str(&c.to_string());
     out.push('\n');
-    let failing: Vec<&str> = v.checks.iter().filter(|c| !c.pass).map(|c| c.name).collect();
+    let failing: Vec<&str> = v
+        .checks
+        .iter()
+        .filter(|c| !c.pass)
+        .map(|c| c.name)
+        .collect();
     if failing.is_empty() {
         out.push_str("meets the specification at every corner\n");
     } else {
-        out.push_str(&format!("does NOT meet the specification: {}\n", failing.join(", ")));
+        out.push_str(&format!(
+            "does NOT meet the specification: {}\n",
+            failing.join(", ")
+        ));
     }
     out
 }
@@ -94,31 +131,67 @@ pub fn analysis(v: &AnalysisView, order: &[&str]) -> String {
 pub fn design(r: &DesignReport) -> String {
     let mut out = String::new();
     if r.mode == "nominal" {
-        out.push_str("*** NOMINAL MODE: checked at the nominal device and nominal resistor values only.\n");
+        out.push_str(
+            "*** NOMINAL MODE: checked at the nominal device and nominal resistor values only.\n",
+        );
         out.push_str("*** These designs are NOT guaranteed across the datasheet spread or resistor tolerances.\n");
     }
-    out.push_str(&format!("{} — {} values, {} check\n", r.name, r.series, if r.mode == "nominal" { "nominal" } else { "worst-case" }));
+    out.push_str(&format!(
+        "{} — {} values, {} check\n",
+        r.name,
+        r.series,
+        if r.mode == "nominal" {
+            "nominal"
+        } else {
+            "worst-case"
+        }
+    ));
     for c in &r.cautions {
         out.push_str(&format!("CAUTION: {c}\n"));
     }
     if !r.designs.is_empty() {
         let mut t = table(vec![
-            "#", "topology", "values (Ω)", "gain min/nom/max", "Zin", "Zout", "ID range", "VDS min", "power", "parts",
+            "#",
+            "topology",
+            "values (Ω)",
+            "gain min/nom/max",
+            "Zin",
+            "Zout",
+            "ID range",
+            "VDS min",
+            "power",
+            "parts",
         ]);
         for d in &r.designs {
             let vals: Vec<String> = d
                 .part_order
                 .iter()
-                .map(|k| format!("{k}={}", d.values.get(k).map_or("?".to_string(), |x| format_value(*x))))
+                .map(|k| {
+                    format!(
+                        "{k}={}",
+                        d.values
+                            .get(k)
+                            .map_or("?".to_string(), |x| format_value(*x))
+                    )
+                })
                 .collect();
             t.add_row(vec![
                 d.rank.to_string(),
                 d.topology.clone(),
                 vals.join(" "),
-                format!("{}/{}/{}", format_sig(d.gain.min, 3), format_sig(d.gain.nominal, 3), format_sig(d.gain.max, 3)),
+                format!(
+                    "{}/{}/{}",
+                    format_sig(d.gain.min, 3),
+                    format_sig(d.gain.nominal, 3),
+                    format_sig(d.gain.max, 3)
+                ),
                 q(d.zin_ohm, "Ω"),
                 q(d.zout_ohm, "Ω"),
-                format!("{}–{}A", format_sig(d.id_a.min, 3), format_value(d.id_a.max)),
+                format!(
+                    "{}–{}A",
+                    format_sig(d.id_a.min, 3),
+                    format_value(d.id_a.max)
+                ),
                 q(d.vds_v.min, "V"),
                 q(d.power_w, "W"),
                 d.parts.to_string(),
@@ -127,7 +200,11 @@ pub fn design(r: &DesignReport) -> String {
         out.push_str(&t.to_string());
         out.push('\n');
     }
-    let relevant: Vec<_> = r.infeasible.iter().filter(|x| x.binding != "device.family").collect();
+    let relevant: Vec<_> = r
+        .infeasible
+        .iter()
+        .filter(|x| x.binding != "device.family")
+        .collect();
     if !relevant.is_empty() {
         out.push_str(if r.designs.is_empty() {
             "no feasible design; per topology:\n"
@@ -138,16 +215,24 @@ pub fn design(r: &DesignReport) -> String {
             out.push_str(&format!("  {}\n", x.reason));
         }
     }
-    let other = r.infeasible.iter().filter(|x| x.binding == "device.family").count();
+    let other = r
+        .infeasible
+        .iter()
+        .filter(|x| x.binding == "device.family")
+        .count();
     if other > 0 {
-        out.push_str(&format!("({other} topologies do not apply to this device family)\n"));
+        out.push_str(&format!(
+            "({other} topologies do not apply to this device family)\n"
+        ));
     }
     out
 }
 
 /// `snap VALUE...`: neighbours in the series.
 pub fn snap(rows: &[SnapResult]) -> String {
-    let mut t = table(vec!["value", "series", "below", "above", "nearest", "error"]);
+    let mut t = table(vec![
+        "value", "series", "below", "above", "nearest", "error",
+    ]);
     let o = |x: Option<f64>| x.map_or("-".to_string(), format_value);
     for r in rows {
         t.add_row(vec![
@@ -164,7 +249,13 @@ pub fn snap(rows: &[SnapResult]) -> String {
 
 /// `snap --ratio`: divider pairs.
 pub fn ratio(rows: &[RatioPair], wanted: f64) -> String {
-    let mut t = table(vec!["R1 (upper)", "R2 (lower)", "total", "R2/(R1+R2)", "error"]);
+    let mut t = table(vec![
+        "R1 (upper)",
+        "R2 (lower)",
+        "total",
+        "R2/(R1+R2)",
+        "error",
+    ]);
     for r in rows {
         t.add_row(vec![
             format_value(r.r1_ohm),
@@ -174,5 +265,8 @@ pub fn ratio(rows: &[RatioPair], wanted: f64) -> String {
             format!("{:+.3} %", 100.0 * r.error),
         ]);
     }
-    format!("divider ratio R2/(R1+R2) = {}\n{t}\n", format_sig(wanted, 6))
+    format!(
+        "divider ratio R2/(R1+R2) = {}\n{t}\n",
+        format_sig(wanted, 6)
+    )
 }

@@ -36,7 +36,9 @@ pub fn combinations(p: &Problem, shelf: &Shelf) -> f64 {
 /// Evaluate every combination for one topology.
 pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
     let t = col.t;
-    let lists: Vec<Vec<f64>> = (0..t.parts().len()).map(|i| choices(t, i, col.p, shelf)).collect();
+    let lists: Vec<Vec<f64>> = (0..t.parts().len())
+        .map(|i| choices(t, i, col.p, shelf))
+        .collect();
     if lists.iter().any(|l| l.is_empty()) {
         return;
     }

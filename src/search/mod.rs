@@ -13,7 +13,9 @@
 pub mod exhaustive;
 pub mod smart;
 
-use crate::analysis::{assess, feasible, gain_window, worst_case, Check, Problem, WorstCase, SLACK};
+use crate::analysis::{
+    assess, feasible, gain_window, worst_case, Check, Problem, WorstCase, SLACK,
+};
 use crate::catalog::Catalog;
 use crate::rank::{order, pareto, score, Metrics, Prefer};
 use crate::spec::ValidSpec;
@@ -44,7 +46,10 @@ impl Shelf {
         Shelf {
             name: cat.name.clone(),
             values: parts.iter().map(|p| p.ohms).collect(),
-            tolerances: parts.iter().map(|p| tolerance.unwrap_or(p.tolerance)).collect(),
+            tolerances: parts
+                .iter()
+                .map(|p| tolerance.unwrap_or(p.tolerance))
+                .collect(),
         }
     }
 
@@ -227,7 +232,10 @@ impl MissTracker {
         match &self.best {
             Some((_, c)) => Rejection {
                 topology: t.id(),
-                reason: format!("{}: needs {}, the closest candidate reached {}", c.name, c.required, c.achieved),
+                reason: format!(
+                    "{}: needs {}, the closest candidate reached {}",
+                    c.name, c.required, c.achieved
+                ),
                 binding: c.name.to_string(),
                 best: c.achieved.clone(),
             },
@@ -304,19 +312,36 @@ fn structural(p: &Problem, t: &dyn Topology) -> Option<Rejection> {
     use crate::spec::Polarity;
     match (s.target.polarity, t.non_inverting()) {
         (Polarity::Inverting, true) => {
-            return Some(rej("polarity", format!("{}: non-inverting by construction", t.id()), "non-inverting"))
+            return Some(rej(
+                "polarity",
+                format!("{}: non-inverting by construction", t.id()),
+                "non-inverting",
+            ))
         }
         (Polarity::NonInverting, false) => {
-            return Some(rej("polarity", format!("{}: inverting by construction", t.id()), "inverting"))
+            return Some(rej(
+                "polarity",
+                format!("{}: inverting by construction", t.id()),
+                "inverting",
+            ))
         }
         _ => {}
     }
     let (lo, _) = gain_window(s);
-    let follower = t.roles().iter().all(|r| !matches!(r, crate::topology::Role::Drain | crate::topology::Role::Feedback));
+    let follower = t.roles().iter().all(|r| {
+        !matches!(
+            r,
+            crate::topology::Role::Drain | crate::topology::Role::Feedback
+        )
+    });
     if follower && lo >= 1.0 {
         return Some(rej(
             "gain",
-            format!("{}: |gain| < 1 by construction (a follower), the target needs at least {}", t.id(), crate::units::format_sig(lo, 4)),
+            format!(
+                "{}: |gain| < 1 by construction (a follower), the target needs at least {}",
+                t.id(),
+                crate::units::format_sig(lo, 4)
+            ),
             "< 1",
         ));
     }
@@ -376,18 +401,33 @@ pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, S
         effort.corner_checks += col.effort.corner_checks;
         effort.exact_checks += col.effort.exact_checks;
         if col.designs.is_empty() {
-            rejected.push(col.miss.rejection(t, &format!("{}: no bias network inside parts.range keeps the device on and saturated", t.id())));
+            rejected.push(col.miss.rejection(
+                t,
+                &format!(
+                    "{}: no bias network inside parts.range keeps the device on and saturated",
+                    t.id()
+                ),
+            ));
             continue;
         }
-        col.designs
-            .sort_by(|a, b| order((a.score, a.topology_index, &a.values), (b.score, b.topology_index, &b.values)));
+        col.designs.sort_by(|a, b| {
+            order(
+                (a.score, a.topology_index, &a.values),
+                (b.score, b.topology_index, &b.values),
+            )
+        });
         col.designs.truncate(opts.per_topology.max(opts.top).max(1));
         all.extend(col.designs);
     }
     let ms: Vec<Metrics> = all.iter().map(|d| d.metrics).collect();
     let keep = pareto(&ms);
     let mut designs: Vec<Design> = keep.into_iter().map(|i| all[i].clone()).collect();
-    designs.sort_by(|a, b| order((a.score, a.topology_index, &a.values), (b.score, b.topology_index, &b.values)));
+    designs.sort_by(|a, b| {
+        order(
+            (a.score, a.topology_index, &a.values),
+            (b.score, b.topology_index, &b.values),
+        )
+    });
     designs.truncate(opts.top);
     Ok(Outcome {
         designs,

@@ -17,7 +17,9 @@
 
 use super::exhaustive::choices;
 use super::{Collector, Shelf};
-use crate::analysis::{assess, corners_only, feasible, gain_window, point, Problem, WorstCase, SLACK};
+use crate::analysis::{
+    assess, corners_only, feasible, gain_window, point, Problem, WorstCase, SLACK,
+};
 use crate::topology::Role;
 use std::collections::HashMap;
 
@@ -53,7 +55,11 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<Vec<f64>
     if dominance {
         out.extend(best.into_values());
     }
-    out.sort_by(|a, b| (a.1 / (a.0 + a.1)).total_cmp(&(b.1 / (b.0 + b.1))).then(a.0.total_cmp(&b.0)));
+    out.sort_by(|a, b| {
+        (a.1 / (a.0 + a.1))
+            .total_cmp(&(b.1 / (b.0 + b.1)))
+            .then(a.0.total_cmp(&b.0))
+    });
     out.into_iter().map(|(a, b)| vec![a, b]).collect()
 }
 
@@ -99,7 +105,9 @@ fn rd_level_a(col: &mut Collector<'_>, v: &mut [f64], rd: usize, shelf: &Shelf) 
     let spread_ok = !lambda_free || wc1.gain_abs_max * lo <= wc1.gain_abs_min * hi * (1.0 + SLACK);
     let need_ok = checks1.iter().all(|c| match c.name {
         "gain" => wc1.gain_abs_min >= lo * (1.0 - SLACK),
-        "gate_bias" | "id_max" | "power_max" | "zin_min" | "vds_max" | "pd_max" | "polarity" => c.pass,
+        "gate_bias" | "id_max" | "power_max" | "zin_min" | "vds_max" | "pd_max" | "polarity" => {
+            c.pass
+        }
         _ => true,
     });
     if !(spread_ok && need_ok) {
@@ -126,7 +134,13 @@ fn first_true(n: usize, mut pred: impl FnMut(usize) -> bool) -> usize {
 /// The run of shelf indices for the last free part (RD or RF) that passes
 /// the nominal-value checks: lower-type checks hold from some value up,
 /// upper-type checks up to some value.
-fn run_range(col: &mut Collector<'_>, v: &mut [f64], k: usize, feedback: bool, shelf: &Shelf) -> std::ops::Range<usize> {
+fn run_range(
+    col: &mut Collector<'_>,
+    v: &mut [f64],
+    k: usize,
+    feedback: bool,
+    shelf: &Shelf,
+) -> std::ops::Range<usize> {
     let p = col.p;
     let t = col.t;
     let (lo, hi) = gain_window(&p.spec);
@@ -189,12 +203,18 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
     let pos = |r: Role| roles.iter().position(|x| *x == r);
     let run_k = pos(Role::Feedback).or_else(|| pos(Role::Drain));
     let feedback = pos(Role::Feedback).is_some();
-    let gates: Vec<usize> = (0..roles.len()).filter(|&i| roles[i] == Role::Gate).collect();
+    let gates: Vec<usize> = (0..roles.len())
+        .filter(|&i| roles[i] == Role::Gate)
+        .collect();
     let gate_free = rsig == 0.0;
     let mut dims: Vec<Dim> = Vec::new();
     if let (Some(a), Some(b)) = (pos(Role::DivTop), pos(Role::DivBottom)) {
         let zin_from_divider = gates.is_empty() && !t.input_at_source();
-        let floor = if zin_from_divider { p.spec.zin_min_ohm } else { 0.0 };
+        let floor = if zin_from_divider {
+            p.spec.zin_min_ohm
+        } else {
+            0.0
+        };
         let dominance = !(zin_from_divider && rsig > 0.0);
         dims.push(Dim {
             positions: vec![a, b],
@@ -209,9 +229,14 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             _ => false,
         };
         if enumerate {
-            let mut opts: Vec<Vec<f64>> = choices(t, i, p, shelf).into_iter().map(|x| vec![x]).collect();
+            let mut opts: Vec<Vec<f64>> = choices(t, i, p, shelf)
+                .into_iter()
+                .map(|x| vec![x])
+                .collect();
             if *r == Role::Gate {
-                opts.retain(|o| o[0] * (1.0 - shelf.tolerance_of(o[0])) >= p.spec.zin_min_ohm * (1.0 - SLACK));
+                opts.retain(|o| {
+                    o[0] * (1.0 - shelf.tolerance_of(o[0])) >= p.spec.zin_min_ohm * (1.0 - SLACK)
+                });
             }
             dims.push(Dim {
                 positions: vec![i],
@@ -254,7 +279,13 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
 }
 
 /// One bias configuration: necessary checks, the run, the exact checks.
-fn visit(col: &mut Collector<'_>, v: &mut [f64], run_k: Option<usize>, feedback: bool, shelf: &Shelf) {
+fn visit(
+    col: &mut Collector<'_>,
+    v: &mut [f64],
+    run_k: Option<usize>,
+    feedback: bool,
+    shelf: &Shelf,
+) {
     let p = col.p;
     let t = col.t;
     let range = match run_k {
@@ -275,7 +306,9 @@ fn visit(col: &mut Collector<'_>, v: &mut [f64], run_k: Option<usize>, feedback:
                 let (lo, _) = gain_window(&p.spec);
                 let wc = corners_only(p, t, v);
                 let ok = wc.gain_abs_min >= lo * (1.0 - SLACK)
-                    && checks.iter().all(|c| c.name == "gain" || c.name == "zout_max" || c.pass);
+                    && checks
+                        .iter()
+                        .all(|c| c.name == "gain" || c.name == "zout_max" || c.pass);
                 if !ok {
                     col.miss.note(&checks);
                     return;
@@ -286,7 +319,11 @@ fn visit(col: &mut Collector<'_>, v: &mut [f64], run_k: Option<usize>, feedback:
             Some(run_range(col, v, k, feedback, shelf))
         }
     };
-    let tol = |v: &[f64]| v.iter().map(|&x| shelf.tolerance_of(x)).collect::<Vec<f64>>();
+    let tol = |v: &[f64]| {
+        v.iter()
+            .map(|&x| shelf.tolerance_of(x))
+            .collect::<Vec<f64>>()
+    };
     match (range, run_k) {
         (Some(r), Some(k)) => {
             for i in r {

@@ -24,7 +24,13 @@ impl Topology for DividerSplit {
         &["R1", "R2", "RS1", "RS2", "RD"]
     }
     fn roles(&self) -> &'static [Role] {
-        &[Role::DivTop, Role::DivBottom, Role::Source, Role::Source, Role::Drain]
+        &[
+            Role::DivTop,
+            Role::DivBottom,
+            Role::Source,
+            Role::Source,
+            Role::Drain,
+        ]
     }
     fn families(&self) -> &'static [Family] {
         &Family::ALL

@@ -4,5 +4,7 @@
 mod eseries;
 /// Exported decks run through ngspice and compared with the closed forms.
 mod ngspice;
+/// Schematic, bias window, frequency response and BOM outputs.
+mod pictures;
 mod spec_errors;
 mod verify_props;

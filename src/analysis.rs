@@ -98,7 +98,55 @@ pub struct Point {
     pub gate_ok: bool,
 }
 
+/// The numbers of one evaluation, without labels (the hot path).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Quick {
+    /// Operating point and small-signal results.
+    pub eval: Evaluation,
+    /// Gain from the signal source's EMF with the load, V/V, signed.
+    pub gain: f64,
+    /// Total DC power drawn from the supplies, watts.
+    pub power_w: f64,
+    /// Device dissipation ID·VDS, watts.
+    pub pd_w: f64,
+    /// Whether VGS respects the gate rating.
+    pub gate_ok: bool,
+}
+
 /// Evaluate one topology with one set of values at one device law and rails.
+pub fn quick(
+    p: &Problem,
+    t: &dyn Topology,
+    values: &[f64],
+    law: &crate::device::SquareLaw,
+    rails: &Rails,
+) -> Quick {
+    let eval = evaluate(
+        t,
+        values,
+        rails,
+        law,
+        p.spec.rl_ohm,
+        p.spec.source_resistance_ohm,
+    );
+    let pr: f64 = t
+        .resistor_volts(values, rails, &eval.op)
+        .iter()
+        .zip(values)
+        .filter(|(_, r)| **r > 0.0)
+        .map(|(v, r)| v * v / r)
+        .sum();
+    let pd_w = eval.op.id_a * eval.op.vds_v;
+    Quick {
+        gain: eval.ss.gain_from_source(p.spec.source_resistance_ohm),
+        power_w: pr + pd_w,
+        pd_w,
+        gate_ok: p.spec.device.gate_ok(eval.op.vgs_v),
+        eval,
+    }
+}
+
+/// Evaluate one topology at one device corner, with labels for output.
 pub fn point(
     p: &Problem,
     t: &dyn Topology,
@@ -106,31 +154,16 @@ pub fn point(
     corner: &Corner,
     rails: &Rails,
 ) -> Point {
-    let eval = evaluate(
-        t,
-        values,
-        rails,
-        &corner.law,
-        p.spec.rl_ohm,
-        p.spec.source_resistance_ohm,
-    );
-    let resistor_v = t.resistor_volts(values, rails, &eval.op);
-    let pr: f64 = resistor_v
-        .iter()
-        .zip(values)
-        .filter(|(_, r)| **r > 0.0)
-        .map(|(v, r)| v * v / r)
-        .sum();
-    let pd_w = eval.op.id_a * eval.op.vds_v;
+    let q = quick(p, t, values, &corner.law, rails);
     Point {
         label: corner.label.clone(),
         params: corner.params.clone(),
-        gain: eval.ss.gain_from_source(p.spec.source_resistance_ohm),
-        power_w: pr + pd_w,
-        pd_w,
-        resistor_v,
-        gate_ok: p.spec.device.gate_ok(eval.op.vgs_v),
-        eval,
+        resistor_v: t.resistor_volts(values, rails, &q.eval.op),
+        eval: q.eval,
+        gain: q.gain,
+        power_w: q.power_w,
+        pd_w: q.pd_w,
+        gate_ok: q.gate_ok,
     }
 }
 
@@ -195,7 +228,7 @@ impl WorstCase {
     }
 
     /// Widen the envelope by one point evaluated with threshold `vto_v`.
-    pub fn add(&mut self, pt: &Point, vto_v: f64) {
+    pub fn add(&mut self, pt: &Quick, vto_v: f64) {
         let op = &pt.eval.op;
         let g = pt.gain.abs();
         self.gain_abs_min = self.gain_abs_min.min(g);
@@ -249,8 +282,7 @@ pub fn worst_case(p: &Problem, t: &dyn Topology, values: &[f64], tolerances: &[f
     for v in tolerance_extremes(values, tolerances) {
         for r in &rails {
             for c in &p.corners {
-                let pt = point(p, t, &v, c, r);
-                wc.add(&pt, c.law.vto_v);
+                wc.add(&quick(p, t, &v, &c.law, r), c.law.vto_v);
             }
         }
     }
@@ -262,8 +294,7 @@ pub fn worst_case(p: &Problem, t: &dyn Topology, values: &[f64], tolerances: &[f
 pub fn corners_only(p: &Problem, t: &dyn Topology, values: &[f64]) -> WorstCase {
     let mut wc = WorstCase::empty();
     for c in &p.corners {
-        let pt = point(p, t, values, c, &p.rails);
-        wc.add(&pt, c.law.vto_v);
+        wc.add(&quick(p, t, values, &c.law, &p.rails), c.law.vto_v);
     }
     wc
 }

@@ -6,7 +6,7 @@
 //! the result is exactly that of evaluating everything in full.
 
 use super::{structural, Collector, Shelf};
-use crate::analysis::{assess, corners_only, feasible, Problem};
+use crate::analysis::{all_pass, corners_only, margins, Problem};
 use crate::topology::{Topology, TOPOLOGIES};
 
 /// Candidate values of part `i` of `t`: the shelf, plus 0 Ω where allowed.
@@ -48,12 +48,11 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         col.effort.configurations += 1;
         col.effort.corner_checks += 1;
         let wc = corners_only(col.p, t, &values);
-        let checks = assess(col.p, t, &wc);
-        if feasible(&checks) {
+        if all_pass(&margins(col.p, t, &wc)) {
             let tols: Vec<f64> = values.iter().map(|&v| shelf.tolerance_of(v)).collect();
             col.exact(&values, &tols);
         } else {
-            col.miss.note(&checks);
+            col.miss.note(col.p, t, &values, &wc);
         }
         // Odometer step, last part fastest.
         let mut k = lists.len();

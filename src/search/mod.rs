@@ -14,7 +14,7 @@ pub mod exhaustive;
 pub mod smart;
 
 use crate::analysis::{
-    assess, feasible, gain_window, worst_case, Check, Problem, WorstCase, SLACK,
+    all_pass, assess, gain_window, margins, worst_case, Problem, WorstCase, SLACK,
 };
 use crate::catalog::Catalog;
 use crate::rank::{order, pareto, score, Metrics, Prefer};
@@ -209,32 +209,40 @@ pub fn problem_for(spec: &ValidSpec, nominal_only: bool) -> Problem {
 }
 
 /// Tracks the closest miss of one topology, for the infeasibility answer.
+/// Only numbers are kept in the loop; words are made once at the end.
 #[derive(Debug, Clone, Default)]
 pub(crate) struct MissTracker {
-    best: Option<(f64, Check)>,
+    best: Option<(f64, Vec<f64>, WorstCase)>,
 }
 
 impl MissTracker {
-    pub(crate) fn note(&mut self, checks: &[Check]) {
-        let worst = checks
-            .iter()
-            .filter(|c| !c.pass)
-            .min_by(|a, b| a.margin.total_cmp(&b.margin));
-        if let Some(c) = worst {
-            let v = -c.margin;
-            if self.best.as_ref().is_none_or(|(b, _)| v < *b) {
-                self.best = Some((v, c.clone()));
-            }
+    pub(crate) fn note(&mut self, p: &Problem, t: &dyn Topology, values: &[f64], wc: &WorstCase) {
+        let worst = margins(p, t, wc)
+            .into_iter()
+            .filter(|m| !m.pass)
+            .map(|m| -m.margin)
+            .fold(f64::NEG_INFINITY, f64::max);
+        if worst.is_finite() && self.best.as_ref().is_none_or(|(b, _, _)| worst < *b) {
+            self.best = Some((worst, values.to_vec(), *wc));
         }
     }
 
-    fn rejection(&self, t: &dyn Topology, fallback: &str) -> Rejection {
-        match &self.best {
-            Some((_, c)) => Rejection {
+    fn rejection(&self, p: &Problem, t: &dyn Topology, fallback: &str) -> Rejection {
+        let worst = self.best.as_ref().and_then(|(_, _, wc)| {
+            assess(p, t, wc)
+                .into_iter()
+                .filter(|c| !c.pass)
+                .min_by(|a, b| a.margin.total_cmp(&b.margin))
+        });
+        match worst {
+            Some(c) => Rejection {
                 topology: t.id(),
                 reason: format!(
-                    "{}: needs {}, the closest candidate reached {}",
-                    c.name, c.required, c.achieved
+                    "{}: {} needs {}; the closest candidate reached {}",
+                    t.id(),
+                    c.name,
+                    c.required,
+                    c.achieved
                 ),
                 binding: c.name.to_string(),
                 best: c.achieved.clone(),
@@ -249,30 +257,52 @@ impl MissTracker {
     }
 }
 
-/// Collects the feasible designs of one topology.
+/// Collects the feasible designs of one topology (the best `keep` of them).
 pub(crate) struct Collector<'a> {
     pub(crate) p: &'a Problem,
     pub(crate) t: &'static dyn Topology,
     pub(crate) index: usize,
     pub(crate) prefer: Prefer,
+    pub(crate) keep: usize,
     pub(crate) designs: Vec<Design>,
     pub(crate) miss: MissTracker,
     pub(crate) effort: Effort,
+    /// The best `keep` exact scores so far, descending.
+    pub(crate) top_scores: Vec<f64>,
 }
 
-impl<'a> Collector<'a> {
+impl Collector<'_> {
+    /// The score a candidate must reach to enter the kept list (−∞ while
+    /// the list is not full). A candidate whose score bound is below it
+    /// cannot be kept, whatever its exact check says.
+    pub(crate) fn threshold(&self) -> f64 {
+        if self.top_scores.len() >= self.keep {
+            self.top_scores[self.keep - 1]
+        } else {
+            f64::NEG_INFINITY
+        }
+    }
+
+    /// Score of optimistic metrics (each at least as good as any design
+    /// they bound can reach), compared with the threshold.
+    pub(crate) fn may_enter(&self, optimistic: &Metrics) -> bool {
+        score(&self.p.spec, optimistic, self.prefer) >= self.threshold()
+    }
+
     /// Exact check of one candidate; keeps it when feasible.
     pub(crate) fn exact(&mut self, values: &[f64], tolerances: &[f64]) -> bool {
         self.effort.exact_checks += 1;
         let wc = worst_case(self.p, self.t, values, tolerances);
-        let checks = assess(self.p, self.t, &wc);
-        if !feasible(&checks) {
-            self.miss.note(&checks);
+        if !all_pass(&margins(self.p, self.t, &wc)) {
+            self.miss.note(self.p, self.t, values, &wc);
             return false;
         }
         let parts = values.iter().filter(|v| **v > 0.0).count() + self.t.capacitors(values).len();
         let metrics = Metrics::new(&self.p.spec, &wc, parts);
         let score = score(&self.p.spec, &metrics, self.prefer);
+        let at = self.top_scores.partition_point(|&x| x >= score);
+        self.top_scores.insert(at, score);
+        self.top_scores.truncate(self.keep);
         self.designs.push(Design {
             topology: self.t,
             topology_index: self.index,
@@ -282,7 +312,21 @@ impl<'a> Collector<'a> {
             metrics,
             score,
         });
+        if self.designs.len() >= 8 * self.keep {
+            self.trim();
+        }
         true
+    }
+
+    /// Keep the best `keep` designs, in rank order.
+    pub(crate) fn trim(&mut self) {
+        self.designs.sort_by(|a, b| {
+            order(
+                (a.score, a.topology_index, &a.values),
+                (b.score, b.topology_index, &b.values),
+            )
+        });
+        self.designs.truncate(self.keep);
     }
 }
 
@@ -389,19 +433,33 @@ pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, S
             t,
             index,
             prefer: opts.prefer,
+            keep: opts.per_topology.max(opts.top).max(1),
             designs: Vec::new(),
             miss: MissTracker::default(),
             effort: Effort::default(),
+            top_scores: Vec::new(),
         };
+        let started = std::time::Instant::now();
         match opts.method {
             Method::Smart => smart::search(&mut col, &shelf),
             Method::Exhaustive => exhaustive::search(&mut col, &shelf),
+        }
+        if std::env::var_os("GATEWRIGHT_PROFILE").is_some() {
+            eprintln!(
+                "profile {:<18} {:>9.3} ms  configurations {:>9}  corner checks {:>9}  exact {:>7}",
+                t.id(),
+                started.elapsed().as_secs_f64() * 1e3,
+                col.effort.configurations,
+                col.effort.corner_checks,
+                col.effort.exact_checks
+            );
         }
         effort.configurations += col.effort.configurations;
         effort.corner_checks += col.effort.corner_checks;
         effort.exact_checks += col.effort.exact_checks;
         if col.designs.is_empty() {
             rejected.push(col.miss.rejection(
+                &p,
                 t,
                 &format!(
                     "{}: no bias network inside parts.range keeps the device on and saturated",
@@ -410,13 +468,7 @@ pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, S
             ));
             continue;
         }
-        col.designs.sort_by(|a, b| {
-            order(
-                (a.score, a.topology_index, &a.values),
-                (b.score, b.topology_index, &b.values),
-            )
-        });
-        col.designs.truncate(opts.per_topology.max(opts.top).max(1));
+        col.trim();
         all.extend(col.designs);
     }
     let ms: Vec<Metrics> = all.iter().map(|d| d.metrics).collect();

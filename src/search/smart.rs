@@ -1,38 +1,42 @@
-//! The default search: necessary-condition pruning plus monotone structure.
+//! The default search: branch and bound on monotone bounds, then exact
+//! checks.
 //!
-//! 1. Bias configurations (divider pair, source resistors, and RD where it
-//!    moves the bias) are enumerated; gate resistors that only set Zin are
-//!    chosen last by rule, and divider pairs with the same ratio are reduced
-//!    to the largest placement (same bias, more Zin, less current) unless a
-//!    source resistance makes Zin enter the gain.
-//! 2. Each configuration is checked at nominal resistor values over the
+//! 1. The bias variables (the gate divider, as a list of pairs sorted by the
+//!    gate voltage they give, and each source resistor, sorted ascending)
+//!    span an index box. Along every axis the drain current moves one known
+//!    way (up with VG, down with RS) and so do VGS, VS and gm (proved by
+//!    implicit differentiation of the bias equation; see DEVELOPERS.md), so
+//!    two solves at the box's extreme points bound every corner's current,
+//!    gm and source voltage over the whole box. A box whose bounds already
+//!    break a requirement is dropped; others are split until single values.
+//! 2. Gate resistors that only set Zin are chosen last by rule; divider
+//!    pairs with the same ratio are reduced to the largest placement (same
+//!    bias, more Zin, less current) unless a source resistance makes Zin
+//!    enter the gain.
+//! 3. A single configuration is checked at nominal resistor values over the
 //!    device corners with the best RD the headroom allows (a necessary
-//!    condition, since |gain| rises and VDS falls with RD).
-//! 3. The feasible RD (or RF) values form one contiguous run of the sorted
-//!    shelf: two binary searches find it.
+//!    condition, since |gain| rises and VDS falls with RD); the feasible RD
+//!    (or RF) values then form one contiguous run of the sorted shelf: two
+//!    binary searches find it.
 //! 4. Every value in the run is checked exactly over all corners and
-//!    tolerance extremes.
+//!    tolerance extremes; only those checks decide what is reported.
 //!
 //! The exhaustive search is the proof: the property test compares them.
 
 use super::exhaustive::choices;
 use super::{Collector, Shelf};
 use crate::analysis::{
-    assess, corners_only, feasible, gain_window, point, Problem, WorstCase, SLACK,
+    all_pass, corners_only, gain_window, margins, quick, Problem, WorstCase, SLACK,
 };
-use crate::topology::Role;
+use crate::device::SquareLaw;
+use crate::rank::{score, Metrics};
+use crate::topology::{Gate, Role, SignalContext, Topology};
 use std::collections::HashMap;
-
-/// One enumerated dimension: the positions it sets and its options.
-struct Dim {
-    positions: Vec<usize>,
-    options: Vec<Vec<f64>>,
-}
 
 /// Divider pairs (R_top, R_bottom): all shelf pairs, or with `dominance`
 /// only the largest placement of each ratio. With `zin_floor` > 0 pairs
 /// whose parallel resistance is below it are dropped.
-fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<Vec<f64>> {
+fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f64)> {
     let vals = &shelf.values;
     let mut out: Vec<(f64, f64)> = Vec::new();
     let mut best: HashMap<i64, (f64, f64)> = HashMap::new();
@@ -55,17 +59,259 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<Vec<f64>
     if dominance {
         out.extend(best.into_values());
     }
-    out.sort_by(|a, b| {
-        (a.1 / (a.0 + a.1))
-            .total_cmp(&(b.1 / (b.0 + b.1)))
-            .then(a.0.total_cmp(&b.0))
-    });
-    out.into_iter().map(|(a, b)| vec![a, b]).collect()
+    out
 }
 
-/// The necessary checks at nominal values, RD-independent or monotone the
-/// right way, for a configuration whose last free part is RD.
-fn rd_level_a(col: &mut Collector<'_>, v: &mut [f64], rd: usize, shelf: &Shelf) -> bool {
+/// One axis of the box: the positions it sets and its options, sorted so
+/// that a higher index means a higher gate voltage (`gate_axis`) or a
+/// larger source resistance.
+struct Axis {
+    positions: Vec<usize>,
+    options: Vec<Vec<f64>>,
+    gate_axis: bool,
+}
+
+/// The square law with λ folded into k at a given VDS (λ then 0): with
+/// VDS inside `[vds_lo, vds_hi]` the true current lies between the two.
+fn folded(law: &SquareLaw, vds_v: f64) -> SquareLaw {
+    SquareLaw {
+        vto_v: law.vto_v,
+        k_a_per_v2: law.k_a_per_v2 * (1.0 + law.lambda_per_v * vds_v.max(0.0)),
+        lambda_per_v: 0.0,
+    }
+}
+
+/// Optimistic metrics from a lower bound of the corner-to-corner |gain|
+/// ratio: the worst-corner gain error is at least (ρ − 1)/(ρ + 1) (the best
+/// placement of the window) and the spread at least (ρ − 1)·lo/gain.
+fn optimistic(
+    s: &crate::spec::ValidSpec,
+    ratio: f64,
+    headroom_v: f64,
+    power_w: f64,
+    zin_ratio: f64,
+    parts: usize,
+) -> Metrics {
+    let (lo, _) = gain_window(s);
+    Metrics {
+        gain_error: (ratio - 1.0) / (ratio + 1.0),
+        gain_spread: (ratio - 1.0) * lo / s.target.gain,
+        headroom_v,
+        id_max_a: 0.0,
+        power_w,
+        zin_ratio,
+        parts,
+    }
+}
+
+struct Bounds<'a> {
+    parts_floor: usize,
+    p: &'a Problem,
+    t: &'static dyn Topology,
+    rd: Option<usize>,
+    r_min: f64,
+    r_max: f64,
+    lambda_free: bool,
+}
+
+/// Saturation current, VGS, VS and gm at a point with RD = 0 (the drain at
+/// its rail), for a folded law.
+fn bias_at(t: &dyn Topology, v: &[f64], p: &Problem, law: &SquareLaw) -> (f64, f64, f64, f64) {
+    // The drain far above everything: the pure saturation root of the
+    // folded law, which is the current at every saturated point.
+    let mut net = t.bias(v, &p.rails);
+    net.rd_ohm = 0.0;
+    if let Gate::FromDrain = net.gate {
+        net.gate = Gate::Fixed(net.drain_rail_v);
+    }
+    net.drain_rail_v = 1e15;
+    let op = net.solve(law);
+    let vov = op.vgs_v - law.vto_v;
+    let gm = if vov > 0.0 {
+        2.0 * law.k_a_per_v2 * vov
+    } else {
+        0.0
+    };
+    (op.id_a, op.vgs_v, op.vs_v, gm)
+}
+
+impl Bounds<'_> {
+    /// Optimistic metrics for every point of the box (each at least as good
+    /// as any feasible point in it can reach), or `None` when no point of the
+    /// box can be feasible.
+    fn bound(&self, axes: &[Axis], ranges: &[(usize, usize)], v: &mut [f64]) -> Option<Metrics> {
+        let p = self.p;
+        let t = self.t;
+        let s = &p.spec;
+        let (lo, hi) = gain_window(s);
+        // Extreme points: current-low = gate axes low, source axes high.
+        let set = |v: &mut [f64], pick: &dyn Fn(&Axis, (usize, usize)) -> usize| {
+            for (a, r) in axes.iter().zip(ranges) {
+                let j = pick(a, *r);
+                for (k, &pos) in a.positions.iter().enumerate() {
+                    v[pos] = a.options[j][k];
+                }
+            }
+        };
+        let low_id = |a: &Axis, r: (usize, usize)| if a.gate_axis { r.0 } else { r.1 - 1 };
+        let high_id = |a: &Axis, r: (usize, usize)| if a.gate_axis { r.1 - 1 } else { r.0 };
+        let low_vs = |_: &Axis, r: (usize, usize)| r.0;
+        let span = s.supply.vdd_v - s.supply.vss_v;
+        let vds_floor = s.vds_min_v;
+        let n = p.corners.len();
+        let mut id_lo = vec![0.0; n];
+        let mut g_lo = vec![0.0; n];
+        let mut g_hi = vec![0.0; n];
+        let mut vs_lo = vec![0.0; n];
+        let mut vov_lo = vec![0.0; n];
+        set(v, &low_id);
+        for (i, c) in p.corners.iter().enumerate() {
+            let law = folded(&c.law, vds_floor);
+            let (id, vgs, _, gm) = bias_at(t, v, p, &law);
+            if s.device
+                .vgs_max_v
+                .is_some_and(|m| vgs > m + SLACK * m.abs().max(1.0))
+            {
+                return None;
+            }
+            if s.limits.id_max_a.is_some_and(|m| id > m * (1.0 + SLACK)) {
+                return None;
+            }
+            id_lo[i] = id;
+            g_lo[i] = gm;
+            vov_lo[i] = (vgs - c.law.vto_v).max(0.0);
+        }
+        set(v, &high_id);
+        for (i, c) in p.corners.iter().enumerate() {
+            let law = folded(&c.law, span);
+            let (id, vgs, _, gm) = bias_at(t, v, p, &law);
+            if id <= 0.0 {
+                return None;
+            }
+            if s.device
+                .vgs_min_v
+                .is_some_and(|m| vgs < m - SLACK * m.abs().max(1.0))
+            {
+                return None;
+            }
+            g_hi[i] = gm;
+        }
+        set(v, &low_vs);
+        for (i, c) in p.corners.iter().enumerate() {
+            let law = folded(&c.law, vds_floor);
+            vs_lo[i] = bias_at(t, v, p, &law).2;
+        }
+        // Headroom: VDS = VDD − VS − RD·ID must reach max(vds_min, vov).
+        let mut rd_cap = f64::INFINITY;
+        for i in 0..n {
+            let room = s.supply.vdd_v - vs_lo[i] - vds_floor.max(vov_lo[i]);
+            if room < -SLACK * span {
+                return None;
+            }
+            if id_lo[i] > 0.0 {
+                rd_cap = rd_cap.min(room.max(0.0) / id_lo[i]);
+            }
+        }
+        if self.rd.is_some() && rd_cap < self.r_min * (1.0 - 1e-9) {
+            return None;
+        }
+        let rd_floor = if self.rd.is_some() { self.r_min } else { 0.0 };
+        let mut headroom_ub = f64::INFINITY;
+        let mut id_floor = f64::INFINITY;
+        for i in 0..n {
+            headroom_ub = headroom_ub.min(s.supply.vdd_v - vs_lo[i] - rd_floor * id_lo[i]);
+            id_floor = id_floor.min(id_lo[i]);
+        }
+        let rails = t.bias(v, &p.rails);
+        let power_lb = id_floor * (rails.drain_rail_v - rails.source_rail_v);
+        // Gain bounds: |gain| rises with gm and RD and is monotone in each
+        // source resistor, so the extremes of the source axes bound it.
+        let src_axes: Vec<usize> = (0..axes.len()).filter(|&i| !axes[i].gate_axis).collect();
+        let combos = 1usize << src_axes.len();
+        let gain_at = |v: &mut [f64], gm: f64, rd: f64, combo: usize| {
+            for (bit, &ai) in src_axes.iter().enumerate() {
+                let r = ranges[ai];
+                let j = if combo & (1 << bit) != 0 {
+                    r.1 - 1
+                } else {
+                    r.0
+                };
+                for (k, &pos) in axes[ai].positions.iter().enumerate() {
+                    v[pos] = axes[ai].options[j][k];
+                }
+            }
+            if let Some(k) = self.rd {
+                v[k] = rd;
+            }
+            let ctx = SignalContext {
+                gm_s: gm,
+                gds_s: 0.0,
+                rl_ohm: s.rl_ohm,
+                rsig_ohm: s.source_resistance_ohm,
+            };
+            let ss = t.small_signal(v, &ctx);
+            (ss.av.abs(), ss.zin_ohm)
+        };
+        let rd_best = rd_cap.min(self.r_max);
+        let mut min_ub = f64::INFINITY;
+        let mut zin_ub_min = f64::INFINITY;
+        for i in 0..n {
+            let mut ub: f64 = 0.0;
+            let mut zin_ub: f64 = 0.0;
+            for cmb in 0..combos {
+                ub = ub.max(gain_at(v, g_hi[i], rd_best, cmb).0);
+                zin_ub = zin_ub.max(gain_at(v, g_lo[i], rd_best, cmb).1);
+            }
+            min_ub = min_ub.min(ub);
+            zin_ub_min = zin_ub_min.min(zin_ub);
+        }
+        if min_ub < lo * (1.0 - SLACK) {
+            return None;
+        }
+        if t.input_at_source() && self.lambda_free && zin_ub_min < s.zin_min_ohm * (1.0 - SLACK) {
+            return None;
+        }
+        // Spread (λ = 0): the ratio of |gain| between corners does not depend
+        // on RD, so a lower bound of max/min above hi/lo rules the box out.
+        let mut ratio = 1.0;
+        if self.lambda_free && (s.source_resistance_ohm == 0.0 || !t.input_at_source()) {
+            let rd_ref = self.r_min;
+            let mut max_lb: f64 = 0.0;
+            let mut min_ub2 = f64::INFINITY;
+            for i in 0..n {
+                let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
+                for cmb in 0..combos {
+                    lb_i = lb_i.min(gain_at(v, g_lo[i], rd_ref, cmb).0);
+                    ub_i = ub_i.max(gain_at(v, g_hi[i], rd_ref, cmb).0);
+                }
+                max_lb = max_lb.max(lb_i);
+                min_ub2 = min_ub2.min(ub_i);
+            }
+            if max_lb * lo > hi * min_ub2 * (1.0 + SLACK) {
+                return None;
+            }
+            if min_ub2 > 0.0 {
+                ratio = (max_lb / min_ub2).max(1.0);
+            }
+            if self.rd.is_none() && max_lb > hi * (1.0 + SLACK) {
+                return None;
+            }
+        }
+        Some(optimistic(
+            s,
+            ratio,
+            headroom_ub - s.vds_min_v,
+            power_lb,
+            f64::INFINITY,
+            self.parts_floor,
+        ))
+    }
+}
+
+/// The necessary checks at nominal values for a configuration whose last
+/// free part is RD: RD-independent ones, and the |gain| reachable with the
+/// largest RD the headroom allows.
+fn rd_level_a(col: &mut Collector<'_>, v: &mut [f64], rd: usize, shelf: &Shelf) -> Option<Metrics> {
     let p: &Problem = col.p;
     let t = col.t;
     let rd0 = shelf.values[0];
@@ -75,9 +321,9 @@ fn rd_level_a(col: &mut Collector<'_>, v: &mut [f64], rd: usize, shelf: &Shelf) 
     let mut wc0 = WorstCase::empty();
     let mut cap = f64::INFINITY;
     for c in &p.corners {
-        let pt = point(p, t, v, c, &p.rails);
-        wc0.add(&pt, c.law.vto_v);
-        let op = &pt.eval.op;
+        let q = quick(p, t, v, &c.law, &p.rails);
+        wc0.add(&q, c.law.vto_v);
+        let op = &q.eval.op;
         if op.id_a <= 0.0 {
             cap = f64::NEG_INFINITY;
             continue;
@@ -85,36 +331,49 @@ fn rd_level_a(col: &mut Collector<'_>, v: &mut [f64], rd: usize, shelf: &Shelf) 
         let need = p.spec.vds_min_v.max(op.vgs_v - c.law.vto_v);
         cap = cap.min(rd0 + (op.vds_v - need) / op.id_a);
     }
-    let checks0 = assess(p, t, &wc0);
     if cap < rd0 * (1.0 - 1e-6) {
-        col.miss.note(&checks0);
-        return false;
+        col.miss.note(p, t, v, &wc0);
+        return None;
     }
     if let Some(z) = p.spec.limits.zout_max_ohm {
         if wc0.zout_max_ohm > z * (1.0 + SLACK) {
-            col.miss.note(&checks0);
-            return false;
+            col.miss.note(p, t, v, &wc0);
+            return None;
         }
     }
     v[rd] = cap.min(r_max);
     col.effort.corner_checks += 1;
     let wc1 = corners_only(p, t, v);
-    let checks1 = assess(p, t, &wc1);
     let (lo, hi) = gain_window(&p.spec);
     let lambda_free = p.corners.iter().all(|c| c.law.lambda_per_v == 0.0);
     let spread_ok = !lambda_free || wc1.gain_abs_max * lo <= wc1.gain_abs_min * hi * (1.0 + SLACK);
-    let need_ok = checks1.iter().all(|c| match c.name {
-        "gain" => wc1.gain_abs_min >= lo * (1.0 - SLACK),
-        "gate_bias" | "id_max" | "power_max" | "zin_min" | "vds_max" | "pd_max" | "polarity" => {
-            c.pass
-        }
-        _ => true,
-    });
+    let need_ok = wc1.gain_abs_min >= lo * (1.0 - SLACK)
+        && margins(p, t, &wc1)
+            .iter()
+            .all(|m| !matches!(m.which, 1 | 2 | 5 | 6 | 7 | 9 | 10) || m.pass);
     if !(spread_ok && need_ok) {
-        col.miss.note(&checks1);
-        return false;
+        col.miss.note(p, t, v, &wc1);
+        return None;
     }
-    true
+    // Optimistic metrics over every RD: the target gain exactly, the
+    // RD-independent spread ratio (λ = 0) at the lowest allowed level, the
+    // headroom of the smallest RD, the power of the largest.
+    let g = p.spec.target.gain;
+    let ratio = if lambda_free && wc1.gain_abs_min > 0.0 {
+        wc1.gain_abs_max / wc1.gain_abs_min
+    } else {
+        1.0
+    };
+    let parts = v.iter().filter(|x| **x > 0.0).count() + t.capacitors(v).len();
+    let _ = g;
+    Some(optimistic(
+        &p.spec,
+        ratio,
+        wc0.vds_min_v - p.spec.vds_min_v,
+        wc0.power_max_w.min(wc1.power_max_w),
+        wc0.zin_min_ohm.max(wc1.zin_min_ohm) / p.spec.zin_min_ohm,
+        parts,
+    ))
 }
 
 /// First index in `0..n` where `pred` turns true (pred monotone false → true).
@@ -146,43 +405,39 @@ fn run_range(
     let (lo, hi) = gain_window(&p.spec);
     let n = shelf.values.len();
     let mut evals = 0u64;
-    let mut eval = |i: usize, v: &mut [f64]| {
-        evals += 1;
+    // Requirement indices (analysis::REQUIREMENTS) by the way they move
+    // with RD: met from some RD up (zin via gm·ro, id, power, vds_max, pd),
+    // or up to some RD (vds_min, saturation, zout).
+    let lower_ok = |v: &mut [f64], i: usize, evals: &mut u64| {
+        *evals += 1;
         v[k] = shelf.values[i];
         let wc = corners_only(p, t, v);
-        let checks = assess(p, t, &wc);
-        (wc, checks)
-    };
-    let lower_ok = |wc: &WorstCase, checks: &[crate::analysis::Check]| {
         wc.gain_abs_min >= lo * (1.0 - SLACK)
-            && checks.iter().all(|c| match c.name {
-                "zin_min" => c.pass,
-                "id_max" | "power_max" | "vds_max" | "pd_max" => feedback || c.pass,
+            && margins(p, t, &wc).iter().all(|m| match m.which {
+                2 => m.pass,
+                6 | 7 | 9 | 10 => feedback || m.pass,
                 _ => true,
             })
     };
-    let upper_ok = |wc: &WorstCase, checks: &[crate::analysis::Check]| {
+    let upper_ok = |v: &mut [f64], i: usize, evals: &mut u64| {
+        *evals += 1;
+        v[k] = shelf.values[i];
+        let wc = corners_only(p, t, v);
         wc.gain_abs_max <= hi * (1.0 + SLACK)
-            && checks.iter().all(|c| match c.name {
-                "zout_max" => c.pass,
-                "vds_min" | "saturation" => feedback || c.pass,
+            && margins(p, t, &wc).iter().all(|m| match m.which {
+                8 => m.pass,
+                3 | 4 => feedback || m.pass,
                 _ => true,
             })
     };
-    let first = first_true(n, |i| {
-        let (wc, ch) = eval(i, v);
-        lower_ok(&wc, &ch)
-    });
-    let last = first_true(n, |i| {
-        let (wc, ch) = eval(i, v);
-        !upper_ok(&wc, &ch)
-    });
+    let first = first_true(n, |i| lower_ok(v, i, &mut evals));
+    let last = first_true(n, |i| !upper_ok(v, i, &mut evals));
     col.effort.corner_checks += evals;
     first..last.max(first)
 }
 
 /// Gate resistors that only set Zin: the smallest value whose worst case
-/// gives full Zin credit (10 × zin_min), else the largest on the shelf.
+/// gives full Zin credit in the score (10 × zin_min), else the largest.
 fn gate_choice(p: &Problem, shelf: &Shelf) -> f64 {
     let want = 10.0 * p.spec.zin_min_ohm * (1.0 - SLACK);
     shelf
@@ -201,13 +456,23 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
     let roles = t.roles();
     let rsig = p.spec.source_resistance_ohm;
     let pos = |r: Role| roles.iter().position(|x| *x == r);
-    let run_k = pos(Role::Feedback).or_else(|| pos(Role::Drain));
     let feedback = pos(Role::Feedback).is_some();
+    let run_k = pos(Role::Feedback).or_else(|| pos(Role::Drain));
     let gates: Vec<usize> = (0..roles.len())
         .filter(|&i| roles[i] == Role::Gate)
         .collect();
     let gate_free = rsig == 0.0;
-    let mut dims: Vec<Dim> = Vec::new();
+    let r_max = shelf.values[shelf.values.len() - 1];
+    let mut v = vec![0.0; roles.len()];
+    for &g in &gates {
+        v[g] = if gate_free {
+            gate_choice(p, shelf)
+        } else {
+            r_max
+        };
+    }
+    // Box axes.
+    let mut axes: Vec<Axis> = Vec::new();
     if let (Some(a), Some(b)) = (pos(Role::DivTop), pos(Role::DivBottom)) {
         let zin_from_divider = gates.is_empty() && !t.input_at_source();
         let floor = if zin_from_divider {
@@ -216,64 +481,148 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             0.0
         };
         let dominance = !(zin_from_divider && rsig > 0.0);
-        dims.push(Dim {
+        let mut pairs: Vec<(f64, f64, f64)> = divider_pairs(shelf, floor, dominance)
+            .into_iter()
+            .map(|(r1, r2)| {
+                v[a] = r1;
+                v[b] = r2;
+                let vg = match t.bias(&v, &p.rails).gate {
+                    Gate::Fixed(x) => x,
+                    Gate::FromDrain => 0.0,
+                };
+                (vg, r1, r2)
+            })
+            .collect();
+        pairs.sort_by(|x, y| x.0.total_cmp(&y.0).then(x.1.total_cmp(&y.1)));
+        axes.push(Axis {
             positions: vec![a, b],
-            options: divider_pairs(shelf, floor, dominance),
+            options: pairs.into_iter().map(|(_, r1, r2)| vec![r1, r2]).collect(),
+            gate_axis: true,
         });
     }
     for (i, r) in roles.iter().enumerate() {
-        let enumerate = match r {
-            Role::Source => true,
-            Role::Drain => feedback,
-            Role::Gate => !gate_free,
-            _ => false,
-        };
-        if enumerate {
-            let mut opts: Vec<Vec<f64>> = choices(t, i, p, shelf)
-                .into_iter()
-                .map(|x| vec![x])
-                .collect();
-            if *r == Role::Gate {
-                opts.retain(|o| {
-                    o[0] * (1.0 - shelf.tolerance_of(o[0])) >= p.spec.zin_min_ohm * (1.0 - SLACK)
-                });
-            }
-            dims.push(Dim {
+        if *r == Role::Source {
+            axes.push(Axis {
                 positions: vec![i],
-                options: opts,
+                options: choices(t, i, p, shelf)
+                    .into_iter()
+                    .map(|x| vec![x])
+                    .collect(),
+                gate_axis: false,
             });
         }
     }
-    if dims.iter().any(|d| d.options.is_empty()) {
+    // Outer (not boxed) choices: RD in drain feedback, gate resistors when a
+    // source resistance makes Zin enter the gain.
+    let mut outer: Vec<(usize, Vec<f64>)> = Vec::new();
+    for (i, r) in roles.iter().enumerate() {
+        match r {
+            Role::Drain if feedback => outer.push((i, shelf.values.clone())),
+            Role::Gate if !gate_free => outer.push((
+                i,
+                shelf
+                    .values
+                    .iter()
+                    .copied()
+                    .filter(|&x| {
+                        x * (1.0 - shelf.tolerance_of(x)) >= p.spec.zin_min_ohm * (1.0 - SLACK)
+                    })
+                    .collect(),
+            )),
+            _ => {}
+        }
+    }
+    if axes.iter().any(|a| a.options.is_empty()) || outer.iter().any(|o| o.1.is_empty()) {
         return;
     }
-    let placeholder_gate = gate_choice(p, shelf);
-    let r_max = shelf.values[shelf.values.len() - 1];
-    let mut v = vec![0.0; roles.len()];
-    for &g in &gates {
-        v[g] = if gate_free { placeholder_gate } else { r_max };
-    }
-    let mut idx = vec![0usize; dims.len()];
+    let zero_able = (0..roles.len())
+        .filter(|&i| t.may_be_zero(i, p.spec.device.family))
+        .count();
+    let parts_floor =
+        roles.len() - zero_able + t.capacitors(&vec![1.0; roles.len()]).len() - zero_able;
+    let bounds = Bounds {
+        parts_floor,
+        p,
+        t,
+        rd: if feedback { None } else { run_k },
+        r_min: shelf.values[0],
+        r_max,
+        lambda_free: p.corners.iter().all(|c| c.law.lambda_per_v == 0.0),
+    };
+    let mut oidx = vec![0usize; outer.len()];
     loop {
-        for (d, &j) in dims.iter().zip(&idx) {
-            for (k, &pos) in d.positions.iter().enumerate() {
-                v[pos] = d.options[j][k];
+        for ((pos, opts), &j) in outer.iter().zip(&oidx) {
+            v[*pos] = opts[j];
+        }
+        let ranges: Vec<(usize, usize)> = axes.iter().map(|a| (0, a.options.len())).collect();
+        if feedback {
+            // Drain feedback has no box: RD is an outer choice.
+            col.effort.configurations += 1;
+            visit(col, &mut v, run_k, feedback, shelf);
+        } else {
+            let mut scratch = v.clone();
+            col.effort.corner_checks += 1;
+            if axes.is_empty() || bounds.bound(&axes, &ranges, &mut scratch).is_some() {
+                branch(col, &bounds, &axes, ranges, &mut v, run_k, shelf);
             }
         }
-        col.effort.configurations += 1;
-        visit(col, &mut v, run_k, feedback, shelf);
-        // Odometer.
-        let mut k = dims.len();
+        let mut k = outer.len();
         loop {
             if k == 0 {
                 return;
             }
             k -= 1;
-            idx[k] += 1;
-            if idx[k] < dims[k].options.len() {
+            oidx[k] += 1;
+            if oidx[k] < outer[k].1.len() {
                 break;
             }
-            idx[k] = 0;
+            oidx[k] = 0;
+        }
+    }
+}
+
+/// Branch and bound over the box, better bound first.
+fn branch(
+    col: &mut Collector<'_>,
+    b: &Bounds<'_>,
+    axes: &[Axis],
+    ranges: Vec<(usize, usize)>,
+    v: &mut Vec<f64>,
+    run_k: Option<usize>,
+    shelf: &Shelf,
+) {
+    let widest = (0..ranges.len()).max_by_key(|&i| ranges[i].1 - ranges[i].0);
+    match widest {
+        Some(i) if ranges[i].1 - ranges[i].0 > 1 => {
+            let (s, e) = ranges[i];
+            let mid = s + (e - s) / 2;
+            let mut left = ranges.clone();
+            left[i] = (s, mid);
+            let mut right = ranges;
+            right[i] = (mid, e);
+            let mut kids: Vec<(f64, Vec<(usize, usize)>)> = Vec::with_capacity(2);
+            for r in [left, right] {
+                col.effort.corner_checks += 1;
+                let mut scratch = v.clone();
+                if let Some(m) = b.bound(axes, &r, &mut scratch) {
+                    kids.push((score(&col.p.spec, &m, col.prefer), r));
+                }
+            }
+            kids.sort_by(|x, y| y.0.total_cmp(&x.0));
+            for (sc, r) in kids {
+                if sc >= col.threshold() {
+                    branch(col, b, axes, r, v, run_k, shelf);
+                }
+            }
+        }
+        _ => {
+            for (a, r) in axes.iter().zip(&ranges) {
+                for (k, &pos) in a.positions.iter().enumerate() {
+                    v[pos] = a.options[r.0][k];
+                }
+            }
+            col.effort.configurations += 1;
+            visit(col, v, run_k, false, shelf);
         }
     }
 }
@@ -291,9 +640,9 @@ fn visit(
     let range = match run_k {
         None => {
             col.effort.corner_checks += 1;
-            let checks = assess(p, t, &corners_only(p, t, v));
-            if !feasible(&checks) {
-                col.miss.note(&checks);
+            let wc = corners_only(p, t, v);
+            if !all_pass(&margins(p, t, &wc)) {
+                col.miss.note(p, t, v, &wc);
                 return;
             }
             None
@@ -302,19 +651,21 @@ fn visit(
             if feedback {
                 v[k] = shelf.values[shelf.values.len() - 1];
                 col.effort.corner_checks += 1;
-                let checks = assess(p, t, &corners_only(p, t, v));
-                let (lo, _) = gain_window(&p.spec);
                 let wc = corners_only(p, t, v);
+                let (lo, _) = gain_window(&p.spec);
                 let ok = wc.gain_abs_min >= lo * (1.0 - SLACK)
-                    && checks
+                    && margins(p, t, &wc)
                         .iter()
-                        .all(|c| c.name == "gain" || c.name == "zout_max" || c.pass);
+                        .all(|m| matches!(m.which, 0 | 8) || m.pass);
                 if !ok {
-                    col.miss.note(&checks);
+                    col.miss.note(p, t, v, &wc);
                     return;
                 }
-            } else if !rd_level_a(col, v, k, shelf) {
-                return;
+            } else {
+                match rd_level_a(col, v, k, shelf) {
+                    Some(m) if col.may_enter(&m) => {}
+                    _ => return,
+                }
             }
             Some(run_range(col, v, k, feedback, shelf))
         }
@@ -328,6 +679,13 @@ fn visit(
         (Some(r), Some(k)) => {
             for i in r {
                 v[k] = shelf.values[i];
+                // Nominal-value metrics bound the worst-case ones.
+                col.effort.corner_checks += 1;
+                let wc = corners_only(p, t, v);
+                let parts = v.iter().filter(|x| **x > 0.0).count() + t.capacitors(v).len();
+                if !col.may_enter(&Metrics::new(&p.spec, &wc, parts)) {
+                    continue;
+                }
                 let tols = tol(v);
                 col.exact(v, &tols);
             }

@@ -439,20 +439,9 @@ pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, S
             effort: Effort::default(),
             top_scores: Vec::new(),
         };
-        let started = std::time::Instant::now();
         match opts.method {
             Method::Smart => smart::search(&mut col, &shelf),
             Method::Exhaustive => exhaustive::search(&mut col, &shelf),
-        }
-        if std::env::var_os("GATEWRIGHT_PROFILE").is_some() {
-            eprintln!(
-                "profile {:<18} {:>9.3} ms  configurations {:>9}  corner checks {:>9}  exact {:>7}",
-                t.id(),
-                started.elapsed().as_secs_f64() * 1e3,
-                col.effort.configurations,
-                col.effort.corner_checks,
-                col.effort.exact_checks
-            );
         }
         effort.configurations += col.effort.configurations;
         effort.corner_checks += col.effort.corner_checks;

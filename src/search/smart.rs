@@ -81,6 +81,31 @@ fn folded(law: &SquareLaw, vds_v: f64) -> SquareLaw {
     }
 }
 
+/// Move every bias resistor to the tolerance extreme that raises (`up`) or
+/// lowers the drain current: the divider tap up or down, the source
+/// resistors down or up.
+fn shift(v: &mut [f64], roles: &[Role], tol: f64, up: bool) {
+    let (dn, upm) = (1.0 - tol, 1.0 + tol);
+    for (x, r) in v.iter_mut().zip(roles) {
+        match r {
+            Role::DivTop | Role::Source => *x *= if up { dn } else { upm },
+            Role::DivBottom => *x *= if up { upm } else { dn },
+            _ => {}
+        }
+    }
+}
+
+/// Lower bound of the |gain| ratio that the RD tolerance alone adds, for
+/// any RD up to `rd_max`: `R'(RD(1+t)) / R'(RD(1−t))` with `R' = RD∥RL`
+/// falls as RD grows.
+fn rd_ratio(rd_max: f64, rl: f64, tol: f64) -> f64 {
+    let par = |a: f64, b: f64| a * b / (a + b);
+    if !rd_max.is_finite() {
+        return 1.0;
+    }
+    par(rd_max * (1.0 + tol), rl) / par(rd_max * (1.0 - tol), rl)
+}
+
 /// Optimistic metrics from a lower bound of the corner-to-corner |gain|
 /// ratio: the worst-corner gain error is at least (ρ − 1)/(ρ + 1) (the best
 /// placement of the window) and the spread at least (ρ − 1)·lo/gain.
@@ -106,6 +131,10 @@ fn optimistic(
 
 struct Bounds<'a> {
     parts_floor: usize,
+    /// Role of each position.
+    roles: &'static [Role],
+    /// Smallest resistor tolerance on the shelf (the safe shift for bounds).
+    tol: f64,
     p: &'a Problem,
     t: &'static dyn Topology,
     rd: Option<usize>,
@@ -196,6 +225,19 @@ impl Bounds<'_> {
             }
             g_hi[i] = gm;
         }
+        // Tolerance-shifted extremes for the spread bound.
+        let mut g_lo_up = vec![0.0; n];
+        let mut g_hi_dn = vec![0.0; n];
+        set(v, &low_id);
+        shift(v, self.roles, self.tol, true);
+        for (i, c) in p.corners.iter().enumerate() {
+            g_lo_up[i] = bias_at(t, v, p, &folded(&c.law, vds_floor)).3;
+        }
+        set(v, &high_id);
+        shift(v, self.roles, self.tol, false);
+        for (i, c) in p.corners.iter().enumerate() {
+            g_hi_dn[i] = bias_at(t, v, p, &folded(&c.law, span)).3;
+        }
         set(v, &low_vs);
         for (i, c) in p.corners.iter().enumerate() {
             let law = folded(&c.law, vds_floor);
@@ -216,6 +258,7 @@ impl Bounds<'_> {
             return None;
         }
         let rd_floor = if self.rd.is_some() { self.r_min } else { 0.0 };
+        #[allow(unused_mut)]
         let mut headroom_ub = f64::INFINITY;
         let mut id_floor = f64::INFINITY;
         for i in 0..n {
@@ -228,7 +271,7 @@ impl Bounds<'_> {
         // source resistor, so the extremes of the source axes bound it.
         let src_axes: Vec<usize> = (0..axes.len()).filter(|&i| !axes[i].gate_axis).collect();
         let combos = 1usize << src_axes.len();
-        let gain_at = |v: &mut [f64], gm: f64, rd: f64, combo: usize| {
+        let gain_at_m = |v: &mut [f64], gm: f64, rd: f64, combo: usize, mult: f64| {
             for (bit, &ai) in src_axes.iter().enumerate() {
                 let r = ranges[ai];
                 let j = if combo & (1 << bit) != 0 {
@@ -237,7 +280,7 @@ impl Bounds<'_> {
                     r.0
                 };
                 for (k, &pos) in axes[ai].positions.iter().enumerate() {
-                    v[pos] = axes[ai].options[j][k];
+                    v[pos] = axes[ai].options[j][k] * mult;
                 }
             }
             if let Some(k) = self.rd {
@@ -252,6 +295,8 @@ impl Bounds<'_> {
             let ss = t.small_signal(v, &ctx);
             (ss.av.abs(), ss.zin_ohm)
         };
+        let gain_at =
+            |v: &mut [f64], gm: f64, rd: f64, combo: usize| gain_at_m(v, gm, rd, combo, 1.0);
         let rd_best = rd_cap.min(self.r_max);
         let mut min_ub = f64::INFINITY;
         let mut zin_ub_min = f64::INFINITY;
@@ -268,6 +313,34 @@ impl Bounds<'_> {
         if min_ub < lo * (1.0 - SLACK) {
             return None;
         }
+        // The smallest RD that can reach |gain| = lo at every corner (gain
+        // rises with RD): the headroom cannot exceed what that RD leaves.
+        if self.rd.is_some() {
+            let reach = |v: &mut [f64], rd: f64| {
+                (0..n).all(|i| {
+                    (0..combos).any(|cmb| gain_at(v, g_hi[i], rd, cmb).0 >= lo * (1.0 - SLACK))
+                })
+            };
+            let (mut a, mut b) = (self.r_min.ln(), rd_best.ln());
+            if reach(v, self.r_min) {
+                b = a;
+            }
+            for _ in 0..12 {
+                if b - a < 1e-4 {
+                    break;
+                }
+                let m = 0.5 * (a + b);
+                if reach(v, m.exp()) {
+                    b = m;
+                } else {
+                    a = m;
+                }
+            }
+            let rd_need = a.exp();
+            for i in 0..n {
+                headroom_ub = headroom_ub.min(s.supply.vdd_v - vs_lo[i] - rd_need * id_lo[i]);
+            }
+        }
         if t.input_at_source() && self.lambda_free && zin_ub_min < s.zin_min_ohm * (1.0 - SLACK) {
             return None;
         }
@@ -281,17 +354,22 @@ impl Bounds<'_> {
             for i in 0..n {
                 let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
                 for cmb in 0..combos {
-                    lb_i = lb_i.min(gain_at(v, g_lo[i], rd_ref, cmb).0);
-                    ub_i = ub_i.max(gain_at(v, g_hi[i], rd_ref, cmb).0);
+                    lb_i = lb_i.min(gain_at_m(v, g_lo_up[i], rd_ref, cmb, 1.0 - self.tol).0);
+                    ub_i = ub_i.max(gain_at_m(v, g_hi_dn[i], rd_ref, cmb, 1.0 + self.tol).0);
                 }
                 max_lb = max_lb.max(lb_i);
                 min_ub2 = min_ub2.min(ub_i);
             }
-            if max_lb * lo > hi * min_ub2 * (1.0 + SLACK) {
+            let rd_part = if self.rd.is_some() {
+                rd_ratio(rd_best, s.rl_ohm, self.tol)
+            } else {
+                1.0
+            };
+            if max_lb * lo * rd_part > hi * min_ub2 * (1.0 + SLACK) {
                 return None;
             }
             if min_ub2 > 0.0 {
-                ratio = (max_lb / min_ub2).max(1.0);
+                ratio = (max_lb / min_ub2).max(1.0) * rd_part;
             }
             if self.rd.is_none() && max_lb > hi * (1.0 + SLACK) {
                 return None;
@@ -359,17 +437,104 @@ fn rd_level_a(col: &mut Collector<'_>, v: &mut [f64], rd: usize, shelf: &Shelf) 
     // RD-independent spread ratio (λ = 0) at the lowest allowed level, the
     // headroom of the smallest RD, the power of the largest.
     let g = p.spec.target.gain;
-    let ratio = if lambda_free && wc1.gain_abs_min > 0.0 {
+    let tol = shelf
+        .tolerances
+        .iter()
+        .copied()
+        .fold(f64::INFINITY, f64::min)
+        .max(0.0);
+    let mut ratio = if lambda_free && wc1.gain_abs_min > 0.0 {
         wc1.gain_abs_max / wc1.gain_abs_min
     } else {
         1.0
     };
+    if lambda_free && tol > 0.0 {
+        // Two tolerance extremes (all bias resistors toward more and toward
+        // less current) bound the worst-case ratio from below; the RD
+        // tolerance multiplies it.
+        let mut up = v.to_vec();
+        shift(&mut up, t.roles(), tol, true);
+        let mut dn = v.to_vec();
+        shift(&mut dn, t.roles(), tol, false);
+        let big = p
+            .corners
+            .iter()
+            .map(|c| quick(p, t, &up, &c.law, &p.rails).gain.abs())
+            .fold(0.0, f64::max);
+        let small = p
+            .corners
+            .iter()
+            .map(|c| quick(p, t, &dn, &c.law, &p.rails).gain.abs())
+            .fold(f64::INFINITY, f64::min);
+        col.effort.corner_checks += 2;
+        if small > 0.0 {
+            ratio = ratio.max(big / small);
+        }
+        ratio *= rd_ratio(v[rd], p.spec.rl_ohm, tol);
+        if ratio * lo > hi * (1.0 + SLACK) {
+            col.miss.note(p, t, v, &wc1);
+            return None;
+        }
+    }
     let parts = v.iter().filter(|x| **x > 0.0).count() + t.capacitors(v).len();
     let _ = g;
+    // Headroom bound: the smallest RD that reaches |gain| = lo at every
+    // corner (λ = 0: the operating point does not move with RD).
+    let mut headroom = wc0.vds_min_v;
+    if lambda_free {
+        let rd_now = v[rd];
+        let ops: Vec<_> = p
+            .corners
+            .iter()
+            .map(|c| {
+                crate::topology::evaluate(
+                    t,
+                    v,
+                    &p.rails,
+                    &c.law,
+                    p.spec.rl_ohm,
+                    p.spec.source_resistance_ohm,
+                )
+            })
+            .collect();
+        let reach = |v: &mut [f64], x: f64| {
+            v[rd] = x;
+            ops.iter().all(|e| {
+                let ctx = SignalContext {
+                    gm_s: e.gm_s,
+                    gds_s: e.gds_s,
+                    rl_ohm: p.spec.rl_ohm,
+                    rsig_ohm: p.spec.source_resistance_ohm,
+                };
+                t.small_signal(v, &ctx)
+                    .gain_from_source(p.spec.source_resistance_ohm)
+                    .abs()
+                    >= lo * (1.0 - SLACK)
+            })
+        };
+        let (mut a, mut b) = (rd0.ln(), cap.min(r_max).ln());
+        for _ in 0..16 {
+            if b - a < 1e-5 {
+                break;
+            }
+            let m = 0.5 * (a + b);
+            if reach(v, m.exp()) {
+                b = m;
+            } else {
+                a = m;
+            }
+        }
+        let rd_need = a.exp();
+        headroom = ops
+            .iter()
+            .map(|e| e.op.vds_v - (rd_need - rd_now) * e.op.id_a)
+            .fold(f64::INFINITY, f64::min);
+        v[rd] = cap.min(r_max);
+    }
     Some(optimistic(
         &p.spec,
         ratio,
-        wc0.vds_min_v - p.spec.vds_min_v,
+        headroom - p.spec.vds_min_v,
         wc0.power_max_w.min(wc1.power_max_w),
         wc0.zin_min_ohm.max(wc1.zin_min_ohm) / p.spec.zin_min_ohm,
         parts,
@@ -542,6 +707,13 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         roles.len() - zero_able + t.capacitors(&vec![1.0; roles.len()]).len() - zero_able;
     let bounds = Bounds {
         parts_floor,
+        roles,
+        tol: shelf
+            .tolerances
+            .iter()
+            .copied()
+            .fold(f64::INFINITY, f64::min)
+            .max(0.0),
         p,
         t,
         rd: if feedback { None } else { run_k },

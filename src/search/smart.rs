@@ -595,8 +595,10 @@ fn run_range(
                 _ => true,
             })
     };
-    let first = first_true(n, |i| lower_ok(v, i, &mut evals));
+    // The upper-type checks first: they include saturation, and only inside
+    // the saturated run is |gain| monotone in RD (in triode it collapses).
     let last = first_true(n, |i| !upper_ok(v, i, &mut evals));
+    let first = first_true(last, |i| lower_ok(v, i, &mut evals));
     col.effort.corner_checks += evals;
     first..last.max(first)
 }

@@ -48,6 +48,10 @@ pub struct SmallSignal {
 impl SmallSignal {
     /// Gain from the signal source's EMF: `av · Zin / (Zin + Rsig)`, V/V.
     pub fn gain_from_source(&self, rsig_ohm: f64) -> f64 {
+        if rsig_ohm == 0.0 {
+            // Exactly av: Zin/(Zin + 0) would round differently per Zin.
+            return self.av;
+        }
         self.av * self.zin_ohm / (self.zin_ohm + rsig_ohm)
     }
 }

@@ -6,5 +6,7 @@ mod eseries;
 mod ngspice;
 /// Schematic, bias window, frequency response and BOM outputs.
 mod pictures;
+/// The default search against the exhaustive reference.
+mod search_props;
 mod spec_errors;
 mod verify_props;

@@ -154,10 +154,10 @@ pub fn design(r: &DesignReport) -> String {
             "#",
             "topology",
             "values (Ω)",
-            "gain min/nom/max",
+            "gain\nmin\nnom\nmax",
             "Zin",
             "Zout",
-            "ID range",
+            "ID\nmin\nmax",
             "VDS min",
             "power",
             "parts",
@@ -178,9 +178,9 @@ pub fn design(r: &DesignReport) -> String {
             t.add_row(vec![
                 d.rank.to_string(),
                 d.topology.clone(),
-                vals.join(" "),
+                vals.join("\n"),
                 format!(
-                    "{}/{}/{}",
+                    "{}\n{}\n{}",
                     format_sig(d.gain.min, 3),
                     format_sig(d.gain.nominal, 3),
                     format_sig(d.gain.max, 3)
@@ -188,9 +188,9 @@ pub fn design(r: &DesignReport) -> String {
                 q(d.zin_ohm, "Ω"),
                 q(d.zout_ohm, "Ω"),
                 format!(
-                    "{}–{}A",
+                    "{}A\n{}A",
                     format_sig(d.id_a.min, 3),
-                    format_value(d.id_a.max)
+                    format_sig(d.id_a.max, 3)
                 ),
                 q(d.vds_v.min, "V"),
                 q(d.power_w, "W"),

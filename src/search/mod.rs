@@ -216,6 +216,11 @@ pub(crate) struct MissTracker {
 }
 
 impl MissTracker {
+    /// True once any miss has been noted.
+    pub(crate) fn is_empty(&self) -> bool {
+        self.best.is_none()
+    }
+
     pub(crate) fn note(&mut self, p: &Problem, t: &dyn Topology, values: &[f64], wc: &WorstCase) {
         let worst = margins(p, t, wc)
             .into_iter()
@@ -238,11 +243,12 @@ impl MissTracker {
             Some(c) => Rejection {
                 topology: t.id(),
                 reason: format!(
-                    "{}: {} needs {}; the closest candidate reached {}",
+                    "{}: {} needs {}; the closest candidate reached {} (short by {} %)",
                     t.id(),
                     c.name,
                     c.required,
-                    c.achieved
+                    c.achieved,
+                    crate::units::format_sig(-100.0 * c.margin, 2)
                 ),
                 binding: c.name.to_string(),
                 best: c.achieved.clone(),

@@ -737,7 +737,10 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             let mut scratch = v.clone();
             col.effort.corner_checks += 1;
             if axes.is_empty() || bounds.bound(&axes, &ranges, &mut scratch).is_some() {
-                branch(col, &bounds, &axes, ranges, &mut v, run_k, shelf);
+                branch(col, &bounds, &axes, ranges.clone(), &mut v, run_k, shelf);
+            }
+            if col.designs.is_empty() && col.miss.is_empty() {
+                diagnose(col, &axes, &ranges, &mut v, run_k, shelf);
             }
         }
         let mut k = outer.len();
@@ -797,6 +800,54 @@ fn branch(
             }
             col.effort.configurations += 1;
             visit(col, v, run_k, false, shelf);
+        }
+    }
+}
+
+/// When the bounds ruled out every box, visit a coarse grid of single
+/// configurations so the answer can name the requirement that bound the
+/// topology and what came closest (none of them can be feasible).
+fn diagnose(
+    col: &mut Collector<'_>,
+    axes: &[Axis],
+    ranges: &[(usize, usize)],
+    v: &mut [f64],
+    run_k: Option<usize>,
+    shelf: &Shelf,
+) {
+    let per_axis = match axes.len() {
+        0 => 1,
+        1 => 64,
+        2 => 16,
+        _ => 6,
+    };
+    let picks: Vec<Vec<usize>> = ranges
+        .iter()
+        .map(|&(s, e)| {
+            let n = e - s;
+            let k = per_axis.min(n).max(1);
+            (0..k).map(|i| s + i * n / k).collect()
+        })
+        .collect();
+    let mut idx = vec![0usize; axes.len()];
+    loop {
+        for ((a, p), &j) in axes.iter().zip(&picks).zip(&idx) {
+            for (k, &pos) in a.positions.iter().enumerate() {
+                v[pos] = a.options[p[j]][k];
+            }
+        }
+        visit(col, v, run_k, false, shelf);
+        let mut k = axes.len();
+        loop {
+            if k == 0 {
+                return;
+            }
+            k -= 1;
+            idx[k] += 1;
+            if idx[k] < picks[k].len() {
+                break;
+            }
+            idx[k] = 0;
         }
     }
 }

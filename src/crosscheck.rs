@@ -345,6 +345,38 @@ pub fn crosscheck(
     Ok(CrossCheck { corners, largest })
 }
 
+/// The whole comparison of one design, for showing (`gatewright verify`).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Verification {
+    /// Topology id.
+    pub topology: String,
+    /// Designator → ohms (0 = a wire).
+    pub values: std::collections::BTreeMap<String, f64>,
+    /// The relative tolerance applied ([`REL_TOL`]).
+    pub tolerance: f64,
+    /// True when the solver answered at every corner and every quantity
+    /// agrees.
+    pub agrees: bool,
+    /// Per corner, in `Problem::corners` order.
+    pub corners: Vec<CornerCheck>,
+    /// Largest relative disagreement per quantity, in [`Quantity::ALL`] order.
+    pub largest: Vec<Largest>,
+}
+
+/// Compare a design at every corner and gather the view (never fails; a
+/// solver failure shows in [`CornerCheck::solver_error`]).
+pub fn verification(p: &Problem, t: &dyn Topology, values: &[f64]) -> Verification {
+    let corners = compare(p, t, values);
+    Verification {
+        topology: t.id().to_string(),
+        values: crate::summary::value_map(t, values),
+        tolerance: REL_TOL,
+        agrees: corners.iter().all(CornerCheck::agrees),
+        largest: largest(&corners),
+        corners,
+    }
+}
+
 /// `RD=6.8k RS=1k …` in the topology's part order, for messages.
 fn values_text(t: &dyn Topology, values: &[f64]) -> String {
     t.parts()

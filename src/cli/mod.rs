@@ -230,8 +230,7 @@ fn design_spice(full: &Problem, outcome: &search::Outcome, corners: bool) -> Str
         let t = d.topology;
         if corners {
             let stem = format!("design{rank}");
-            for deck in report::spice::per_corner(t, &d.values, &input, &full.corners, &stem, &[])
-            {
+            for deck in report::spice::per_corner(t, &d.values, &input, &full.corners, &stem, &[]) {
                 s.push_str(&deck.text);
                 s.push_str(&format!(
                     "* ==== end of {}: design {rank} ({}), device corner {}: {} ====\n",

@@ -90,7 +90,9 @@ fn from_design_file(
         None => (&root, format!("`{name}`")),
     };
     let Some(id) = entry.get("topology").and_then(Value::as_str) else {
-        bail!("{at}: no `topology` string (expected a design from `gatewright design --format json`)");
+        bail!(
+            "{at}: no `topology` string (expected a design from `gatewright design --format json`)"
+        );
     };
     let t = load::topology(id, &format!("{at}.topology"))?;
     let Some(Value::Object(map)) = entry.get("values") else {

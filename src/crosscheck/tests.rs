@@ -84,7 +84,11 @@ fn relative_measure_has_a_floor_and_handles_infinity() {
     let r = relative(Quantity::Id, 0.0, Complex64::new(1e-15, 0.0));
     assert!((r - 1e-3).abs() < 1e-12);
     assert_eq!(
-        relative(Quantity::Zin, f64::INFINITY, Complex64::new(f64::INFINITY, 0.0)),
+        relative(
+            Quantity::Zin,
+            f64::INFINITY,
+            Complex64::new(f64::INFINITY, 0.0)
+        ),
         0.0
     );
     assert_eq!(
@@ -133,7 +137,9 @@ impl Topology for Faulty {
         ss
     }
     fn resistor_volts(&self, values: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
-        by_id("self-bias").unwrap().resistor_volts(values, rails, op)
+        by_id("self-bias")
+            .unwrap()
+            .resistor_volts(values, rails, op)
     }
     fn netlist(&self, values: &[f64], build: &NetlistInput) -> Netlist {
         let mut net = by_id("self-bias").unwrap().netlist(values, build);
@@ -238,4 +244,23 @@ fn retain_verified_drops_only_the_disagreeing_designs() {
         warnings[1]
     );
     assert!(warnings[1].contains("solver failed"), "{}", warnings[1]);
+}
+
+// Kirchhoff at the drain: with RD = 1 TΩ the device sits deep in triode
+// with VDS of a few nanovolts, a rail-sized difference (15 V − RD·ID) that
+// keeps only the last digits of f64. The 1 µV voltage floor keeps that
+// rounding (about 1e-14 V) from reading as a disagreement.
+#[test]
+fn nanovolt_vds_from_cancellation_is_not_a_disagreement() {
+    let p = problem("['6m', '10m']", "['-3', '-5']");
+    let t = by_id("self-bias").unwrap();
+    let cc = crosscheck(&p, t, &[1e6, 1e-3, 1e12]).unwrap();
+    for c in &cc.corners {
+        let vds = row(c, Quantity::Vds);
+        assert!(vds.solver > 0.0 && vds.solver < 1e-8, "{vds:?}");
+        assert!((vds.solver - vds.closed_form).abs() < 1e-12, "{vds:?}");
+        // KCL: essentially all of VDD across RD, ID = 15 V / 1 TΩ.
+        let id = row(c, Quantity::Id);
+        assert!((id.solver - 15.0 / 1e12).abs() < 1e-6 * 15e-12, "{id:?}");
+    }
 }

@@ -132,7 +132,10 @@ mod tests {
         let text = verification(&view(2.01e-3), &["RS".into(), "RD".into()]);
         assert!(text.starts_with("self-bias RS=1k RD=3.3k"), "{text}");
         assert!(text.contains("corner: nominal"), "{text}");
-        assert!(text.contains("| ID       | 2mA         | 2.01mA |"), "{text}");
+        assert!(
+            text.contains("| ID       | 2mA         | 2.01mA |"),
+            "{text}"
+        );
         assert!(text.contains("5.00e-3"), "{text}");
         assert!(text.contains("| NO     |"), "{text}");
         assert!(

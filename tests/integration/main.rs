@@ -1,5 +1,7 @@
 //! Integration tests.
 
+/// Top designs of every example: closed form vs solver vs ngspice; `verify`.
+mod crosscheck;
 /// IEC 60063 tables and catalog queries.
 mod eseries;
 /// Exported decks run through ngspice and compared with the closed forms.
@@ -7,4 +9,6 @@ mod ngspice;
 /// Schematic, bias window, frequency response and BOM outputs.
 mod pictures;
 mod spec_errors;
+/// Shared helpers (ngspice runs).
+mod util;
 mod verify_props;

@@ -18,7 +18,7 @@
 use crate::analysis::{quick, Problem};
 use crate::device::Corner;
 use crate::search::Outcome;
-use crate::topology::{Caps, NetlistInput, Topology};
+use crate::topology::Topology;
 use crate::verify::{self, Freq, SolveError};
 use num_complex::Complex64;
 use serde::Serialize;
@@ -216,19 +216,6 @@ pub enum Disagreement {
     },
 }
 
-/// The netlist inputs of a corner: the problem's rails, load and source
-/// resistance, mid-band capacitors. NOTE: mirrors `cli::load::netlist_input`.
-fn netlist_input(p: &Problem, corner: &Corner) -> NetlistInput {
-    NetlistInput {
-        law: corner.law,
-        kind: p.kind,
-        rails: p.rails,
-        rl_ohm: p.spec.rl_ohm,
-        rsig_ohm: p.spec.source_resistance_ohm,
-        caps: Caps::MID_BAND,
-    }
-}
-
 /// Closed form against solver at one corner.
 fn at_corner(
     p: &Problem,
@@ -238,7 +225,7 @@ fn at_corner(
 ) -> Result<Vec<Comparison>, Disagreement> {
     let label = || corner.label.clone();
     let closed = quick(p, t, values, &corner.law, &p.rails);
-    let net = t.netlist(values, &netlist_input(p, corner));
+    let net = t.netlist(values, &p.netlist_input(corner));
     let solved = verify::dc(&net)
         .and_then(|dc| verify::small_signal(&net, &dc, Freq::MidBand).map(|m| (dc, m)));
     let (dc, m) = solved.map_err(|error| Disagreement::Solver {

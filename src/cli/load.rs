@@ -9,7 +9,7 @@ use crate::catalog::{stock, Catalog};
 use crate::device::{Corner, Family};
 use crate::search::Shelf;
 use crate::spec::{CatalogChoice, ValidSpec};
-use crate::topology::{Caps, NetlistInput, Topology};
+use crate::topology::{NetlistInput, Topology};
 
 /// A specification with its resistor catalog loaded.
 pub(crate) struct Loaded {
@@ -187,12 +187,5 @@ pub(crate) fn parse_span(text: &str) -> Result<(f64, f64)> {
 
 /// Netlist inputs for a device corner with mid-band placeholder capacitors.
 pub(crate) fn netlist_input(p: &Problem, corner: &Corner) -> NetlistInput {
-    NetlistInput {
-        law: corner.law,
-        kind: p.kind,
-        rails: p.rails,
-        rl_ohm: p.spec.rl_ohm,
-        rsig_ohm: p.spec.source_resistance_ohm,
-        caps: Caps::MID_BAND,
-    }
+    p.netlist_input(corner)
 }

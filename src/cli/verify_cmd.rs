@@ -17,6 +17,9 @@ use crate::topology::Topology;
 
 /// Run the command.
 pub(crate) fn run(a: VerifyArgs) -> Result<ExitCode> {
+    if matches!(a.format, Format::Csv | Format::Spice) {
+        bail!("`--format` for `verify` is table or json");
+    }
     let loaded = load::spec(&a.spec)?;
     let family = loaded.spec.device.family;
     let (t, values) = match (&a.design, &a.topology, &a.values) {
@@ -44,12 +47,9 @@ pub(crate) fn run(a: VerifyArgs) -> Result<ExitCode> {
     let view = crosscheck::verification(&p, t, &values);
     let text = match a.format {
         Format::Json => json(&view)?,
-        Format::Table => {
+        _ => {
             let order: Vec<String> = t.parts().iter().map(|s| s.to_string()).collect();
             crate::report::verify_table::verification(&view, &order)
-        }
-        Format::Csv | Format::Spice => {
-            bail!("`--format` for `verify` is table or json")
         }
     };
     emit(&text)?;

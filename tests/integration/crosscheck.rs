@@ -19,7 +19,6 @@ use gatewright::netlist::{Element, GROUND};
 use gatewright::report::spice::{designator, per_corner};
 use gatewright::search::{self, Design, Options, Shelf};
 use gatewright::spec::CatalogChoice;
-use gatewright::topology::{Caps, NetlistInput};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use std::sync::OnceLock;
@@ -169,14 +168,7 @@ fn ngspice_confirms_the_top_designs_of_every_example() {
     let mut runs = 0;
     for e in examples() {
         let p = &e.problem;
-        let input = NetlistInput {
-            law: p.nominal.law,
-            kind: p.kind,
-            rails: p.rails,
-            rl_ohm: p.spec.rl_ohm,
-            rsig_ohm: p.spec.source_resistance_ohm,
-            caps: Caps::MID_BAND,
-        };
+        let input = p.netlist_input(&p.nominal);
         for (i, d) in e.designs.iter().enumerate() {
             let what = describe(e, i + 1, d);
             let t = d.topology;
@@ -186,13 +178,7 @@ fn ngspice_confirms_the_top_designs_of_every_example() {
             for (deck, corner) in decks.iter().zip(&p.corners) {
                 let ctx = format!("{what} ({})", corner.label);
                 let ours = quick(p, t, &d.values, &corner.law, &p.rails);
-                let net = t.netlist(
-                    &d.values,
-                    &NetlistInput {
-                        law: corner.law,
-                        ..input
-                    },
-                );
+                let net = t.netlist(&d.values, &p.netlist_input(corner));
                 let (dn, sn, des) = net
                     .elements
                     .iter()
@@ -357,6 +343,17 @@ fn verify_bad_input_exits_2_naming_the_field() {
             "`--values` RS = -1k: must be between",
         ),
         (&["--topology", "self-bias"], "--values"),
+        (
+            &[
+                "--topology",
+                "self-bias",
+                "--values",
+                "RG=1M,RS=1k,RD=1k",
+                "--format",
+                "csv",
+            ],
+            "`--format` for `verify` is table or json",
+        ),
         (&[], "--topology"),
     ];
     for (extra, want) in cases {

@@ -51,6 +51,19 @@ impl Problem {
         }
     }
 
+    /// The netlist inputs at a device corner: the nominal rails, the load,
+    /// the source resistance and mid-band (ideal short) capacitors.
+    pub fn netlist_input(&self, corner: &Corner) -> crate::topology::NetlistInput {
+        crate::topology::NetlistInput {
+            law: corner.law,
+            kind: self.kind,
+            rails: self.rails,
+            rl_ohm: self.spec.rl_ohm,
+            rsig_ohm: self.spec.source_resistance_ohm,
+            caps: crate::topology::Caps::MID_BAND,
+        }
+    }
+
     /// Supply-rail extremes: nominal only, or both ends of the supply
     /// tolerance (both rails move together in magnitude).
     pub fn rail_extremes(&self) -> Vec<Rails> {

@@ -2,7 +2,7 @@
 //!
 //! Layers, each using only those above it:
 //! `units` → `catalog` → `device` → `spec`, `netlist` → `topology` →
-//! `analysis` → `search` → `verify` → `rank` → `ratings` → `report` → `cli`.
+//! `analysis` → `search` → `verify` → `crosscheck` → `rank` → `ratings` → `report` → `cli`.
 //!
 //! ```
 //! use gatewright::topology::{by_id, evaluate, Rails};
@@ -19,6 +19,7 @@
 pub mod analysis;
 pub mod catalog;
 pub mod cli;
+pub mod crosscheck;
 pub mod device;
 pub mod netlist;
 pub mod rank;

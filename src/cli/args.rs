@@ -23,7 +23,16 @@ pub(crate) enum Cmd {
     Snap(SnapArgs),
     /// List the topologies with their parts and device families.
     Topologies,
+    /// Check one design's closed-form results against the independent nodal
+    /// solver at every device corner.
+    #[command(after_help = VERIFY_EXIT)]
+    Verify(VerifyArgs),
 }
+
+const VERIFY_EXIT: &str = "Exit status:\n  \
+    0  the closed form and the solver agree (within 1e-6 relative) at every corner\n  \
+    1  they disagree somewhere, or the solver failed at some corner\n  \
+    2  bad input (specification, topology, values or design file)";
 
 /// Output format.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, ValueEnum)]
@@ -104,6 +113,32 @@ pub(crate) struct DesignArgs {
     /// Search method.
     #[arg(long, value_enum, default_value_t)]
     pub(crate) search: SearchArg,
+    /// With `--format spice`: one netlist per device corner for each design
+    /// (instead of the nominal one).
+    #[arg(long)]
+    pub(crate) spice_corners: bool,
+}
+
+#[derive(Debug, Args)]
+pub(crate) struct VerifyArgs {
+    /// Specification file (TOML): device corners, rails, load, source.
+    pub(crate) spec: PathBuf,
+    /// Topology id (see `gatewright topologies`); with `--values`.
+    #[arg(long, requires = "values", required_unless_present = "design")]
+    pub(crate) topology: Option<String>,
+    /// Every resistor of the topology, e.g. `RG=1M,RS=1k,RD=3.3k`.
+    #[arg(long, requires = "topology")]
+    pub(crate) values: Option<String>,
+    /// A design from `gatewright design --format json` (the whole output, or
+    /// one entry of its `designs` array).
+    #[arg(long, conflicts_with_all = ["topology", "values"])]
+    pub(crate) design: Option<PathBuf>,
+    /// Which design of the file's `designs` array, by its `rank` (default 1).
+    #[arg(long, requires = "design", value_parser = clap::value_parser!(u16).range(1..))]
+    pub(crate) rank: Option<u16>,
+    /// Output format (table or json).
+    #[arg(long, value_enum, default_value_t)]
+    pub(crate) format: Format,
 }
 
 #[derive(Debug, Args)]

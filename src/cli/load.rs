@@ -9,7 +9,7 @@ use crate::catalog::{stock, Catalog};
 use crate::device::{Corner, Family};
 use crate::search::Shelf;
 use crate::spec::{CatalogChoice, ValidSpec};
-use crate::topology::{Caps, NetlistInput, Topology};
+use crate::topology::{NetlistInput, Topology};
 
 /// A specification with its resistor catalog loaded.
 pub(crate) struct Loaded {
@@ -83,29 +83,65 @@ impl Loaded {
 
 /// `R1=4.7M,R2=1M,...` into values in the topology's part order.
 pub(crate) fn values(t: &dyn Topology, text: &str, family: Family) -> Result<Vec<f64>> {
-    let mut out: Vec<Option<f64>> = vec![None; t.parts().len()];
+    let mut items = Vec::new();
     for item in text.split(',').map(str::trim).filter(|s| !s.is_empty()) {
         let Some((name, val)) = item.split_once('=') else {
             bail!("`--values`: `{item}` is not DESIGNATOR=VALUE (e.g. RD=6.8k)");
         };
         let name = name.trim();
+        let v = crate::units::parse_value(val).with_context(|| format!("`--values` {name}"))?;
+        items.push((name.to_string(), v, val.trim().to_string()));
+    }
+    place(t, &items, family, "`--values`")
+}
+
+/// Designator → ohms (e.g. a design's `values` from JSON) into values in
+/// the topology's part order; `field` names the source in messages.
+pub(crate) fn values_from_map(
+    t: &dyn Topology,
+    map: &[(String, f64)],
+    family: Family,
+    field: &str,
+) -> Result<Vec<f64>> {
+    let items: Vec<(String, f64, String)> = map
+        .iter()
+        .map(|(k, v)| (k.clone(), *v, v.to_string()))
+        .collect();
+    place(t, &items, family, field)
+}
+
+/// Check (designator, ohms, as written) items and put them in part order.
+fn place(
+    t: &dyn Topology,
+    items: &[(String, f64, String)],
+    family: Family,
+    field: &str,
+) -> Result<Vec<f64>> {
+    let mut out: Vec<Option<f64>> = vec![None; t.parts().len()];
+    for (name, v, written) in items {
+        let (name, v) = (name.as_str(), *v);
         let Some(i) = t.index_of(name) else {
             bail!(
-                "`--values`: `{name}` is not a part of {}; its parts are {}",
+                "{field}: `{name}` is not a part of {}; its parts are {}",
                 t.id(),
                 t.parts().join(", ")
             );
         };
-        let v = crate::units::parse_value(val).with_context(|| format!("`--values` {name}"))?;
         let zero_ok = t.may_be_zero(i, family);
-        if v < 0.0 || (v == 0.0 && !zero_ok) || !(1e-3..=1e12).contains(&v) && v != 0.0 {
+        if !v.is_finite()
+            || v < 0.0
+            || (v == 0.0 && !zero_ok)
+            || !(1e-3..=1e12).contains(&v) && v != 0.0
+        {
             bail!(
-                "`--values` {name} = {val}: must be between 1 mΩ and 1 TΩ{}",
+                "{field} {name} = {written}: must be between 1 mΩ and 1 TΩ{}",
                 if zero_ok { " (or 0 for a wire)" } else { "" }
             );
         }
-        if out[i].replace(v).is_some() {
-            bail!("`--values`: {name} is given twice");
+        if let Some(slot) = out.get_mut(i) {
+            if slot.replace(v).is_some() {
+                bail!("{field}: {name} is given twice");
+            }
         }
     }
     let missing: Vec<&str> = t
@@ -117,13 +153,23 @@ pub(crate) fn values(t: &dyn Topology, text: &str, family: Family) -> Result<Vec
         .collect();
     if !missing.is_empty() {
         bail!(
-            "`--values`: missing {} (a {} needs {})",
+            "{field}: missing {} (a {} needs {})",
             missing.join(", "),
             t.id(),
             t.parts().join(", ")
         );
     }
     Ok(out.into_iter().map(|v| v.unwrap_or(0.0)).collect())
+}
+
+/// A topology by id, or an error listing the ids; `field` names the source.
+pub(crate) fn topology(id: &str, field: &str) -> Result<&'static dyn Topology> {
+    crate::topology::by_id(id).with_context(|| {
+        format!(
+            "{field} = {id}: unknown; expected one of {}",
+            crate::topology::ids().join(", ")
+        )
+    })
 }
 
 /// `MIN..MAX` in engineering notation, either order.
@@ -141,12 +187,5 @@ pub(crate) fn parse_span(text: &str) -> Result<(f64, f64)> {
 
 /// Netlist inputs for a device corner with mid-band placeholder capacitors.
 pub(crate) fn netlist_input(p: &Problem, corner: &Corner) -> NetlistInput {
-    NetlistInput {
-        law: corner.law,
-        kind: p.kind,
-        rails: p.rails,
-        rl_ohm: p.spec.rl_ohm,
-        rsig_ohm: p.spec.source_resistance_ohm,
-        caps: Caps::MID_BAND,
-    }
+    p.netlist_input(corner)
 }

@@ -7,6 +7,7 @@
 
 mod args;
 mod load;
+mod verify_cmd;
 
 use anyhow::{bail, Context, Result};
 use args::{Cli, Cmd, Format};
@@ -93,6 +94,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
         }
         Cmd::Analyze(a) => analyze_cmd(a),
         Cmd::Design(a) => design_cmd(a),
+        Cmd::Verify(a) => verify_cmd::run(a),
     }
 }
 
@@ -142,13 +144,7 @@ fn snap_cmd(a: args::SnapArgs) -> Result<ExitCode> {
 
 fn analyze_cmd(a: args::AnalyzeArgs) -> Result<ExitCode> {
     let loaded = load::spec(&a.spec)?;
-    let t = crate::topology::by_id(&a.topology).with_context(|| {
-        format!(
-            "`--topology` = {}: unknown; expected one of {}",
-            a.topology,
-            crate::topology::ids().join(", ")
-        )
-    })?;
+    let t = load::topology(&a.topology, "`--topology`")?;
     let values = load::values(t, &a.values, loaded.spec.device.family)?;
     let tolerances: Vec<f64> = values.iter().map(|&v| loaded.tolerance_for(v)).collect();
     let p = Problem::new(&loaded.spec);
@@ -192,31 +188,22 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
         method: a.search.into(),
         ..Options::default()
     };
-    let outcome = search::run(&loaded.spec, &shelf, &opts)?;
+    if a.spice_corners && a.format != Format::Spice {
+        bail!("`--spice-corners` works with `--format spice` only");
+    }
+    let mut outcome = search::run(&loaded.spec, &shelf, &opts)?;
     let full = Problem::new(&loaded.spec);
+    // Every ranked design is confirmed by the independent nodal solver at
+    // every device corner; one it does not confirm is never shown.
+    for w in crate::crosscheck::retain_verified(&full, &mut outcome) {
+        talk(&format!("warning: {w}"));
+    }
     let report_view = summary::design_report(&full, &shelf.name, &outcome, Vec::new());
     let text = match a.format {
         Format::Json => json(&report_view)?,
         Format::Csv => report::csv::designs(&report_view),
         Format::Table => report::table::design(&report_view),
-        Format::Spice => {
-            let mut s = String::new();
-            for d in &outcome.designs {
-                let input = load::netlist_input(&full, &full.nominal);
-                let net = d.topology.netlist(&d.values, &input);
-                s.push_str(&report::spice::netlist_to_spice(
-                    &net,
-                    &format!(
-                        "gatewright design {} {}",
-                        report_view.designs.len(),
-                        d.topology.id()
-                    ),
-                    &[],
-                ));
-                s.push('\n');
-            }
-            s
-        }
+        Format::Spice => design_spice(&full, &outcome, a.spice_corners),
     };
     emit(&text)?;
     if outcome.nominal_only {
@@ -227,4 +214,44 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     } else {
         ExitCode::SUCCESS
     })
+}
+
+/// `design --format spice`: the nominal netlist of each design, or with
+/// `corners` one netlist per device corner. Each deck starts with its title
+/// line (as SPICE requires) and is followed, after its `.end`, by a `*`
+/// separator line naming the design and the corner: ngspice ignores what
+/// follows `.end`, so the output runs as it is (the first deck) and splits
+/// at the separators into decks that run unchanged.
+fn design_spice(full: &Problem, outcome: &search::Outcome, corners: bool) -> String {
+    let mut s = String::new();
+    let input = load::netlist_input(full, &full.nominal);
+    for (i, d) in outcome.designs.iter().enumerate() {
+        let rank = i + 1;
+        let t = d.topology;
+        if corners {
+            let stem = format!("design{rank}");
+            for deck in report::spice::per_corner(t, &d.values, &input, &full.corners, &stem, &[]) {
+                s.push_str(&deck.text);
+                s.push_str(&format!(
+                    "* ==== end of {}: design {rank} ({}), device corner {}: {} ====\n",
+                    deck.file_name,
+                    t.id(),
+                    deck.index,
+                    deck.label
+                ));
+            }
+        } else {
+            let net = t.netlist(&d.values, &input);
+            s.push_str(&report::spice::netlist_to_spice(
+                &net,
+                &format!("gatewright design {rank} {}", t.id()),
+                &[],
+            ));
+            s.push_str(&format!(
+                "* ==== end of design {rank} ({}), nominal device ====\n",
+                t.id()
+            ));
+        }
+    }
+    s
 }

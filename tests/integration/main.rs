@@ -1,5 +1,7 @@
 //! Integration tests.
 
+/// Top designs of every example: closed form vs solver vs ngspice; `verify`.
+mod crosscheck;
 /// IEC 60063 tables and catalog queries.
 mod eseries;
 /// Exported decks run through ngspice and compared with the closed forms.
@@ -9,4 +11,6 @@ mod pictures;
 /// The default search against the exhaustive reference.
 mod search_props;
 mod spec_errors;
+/// Shared helpers (ngspice runs).
+mod util;
 mod verify_props;

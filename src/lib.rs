@@ -17,6 +17,8 @@
 #![forbid(unsafe_code)]
 
 pub mod analysis;
+pub mod bench;
+pub mod caps;
 pub mod catalog;
 pub mod cli;
 pub mod device;

@@ -41,6 +41,7 @@
 use crate::analysis::{quick, tolerance_extremes, Problem};
 use crate::catalog::ESeries;
 use crate::topology::{CapRole, Caps, NetlistInput, Topology};
+use crate::units::round_sig;
 use crate::verify::{self, LowCorner, SolveError};
 use serde::Serialize;
 use std::f64::consts::PI;
@@ -213,7 +214,9 @@ pub fn snap_up(c_f: f64, series: ESeries) -> f64 {
             .iter()
             .find(|&&m| m * scale >= c_f * (1.0 - SLACK))
         {
-            return m * scale;
+            // Series mantissas have at most three figures: rounding to them
+            // removes the noise of `m · 10^k` (18.000000000000002n).
+            return round_sig(m * scale, 3);
         }
     }
     10f64.powi(k + 1)

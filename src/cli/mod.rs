@@ -6,6 +6,7 @@
 //! pipe ends the program quietly.
 
 mod args;
+mod bench;
 mod load;
 
 use anyhow::{bail, Context, Result};
@@ -188,13 +189,18 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     let opts = Options {
         nominal_only: a.nominal,
         prefer: a.prefer.into(),
-        top: usize::from(a.top),
+        top: usize::from(a.top).max(a.pick.map_or(0, usize::from)),
         method: a.search.into(),
         ..Options::default()
     };
     let outcome = search::run(&loaded.spec, &shelf, &opts)?;
     let full = Problem::new(&loaded.spec);
-    let report_view = summary::design_report(&full, &shelf.name, &outcome, Vec::new());
+    let cautions = crate::bench::spec_cautions(&full);
+    let report_view = summary::design_report(&full, &shelf.name, &outcome, cautions);
+    if let Some(n) = a.pick {
+        let n = usize::from(n);
+        return bench::run(&full, &report_view, &outcome, n, a.out.as_deref(), a.force);
+    }
     let text = match a.format {
         Format::Json => json(&report_view)?,
         Format::Csv => report::csv::designs(&report_view),

@@ -6,3 +6,4 @@ pub mod csv;
 pub mod spice;
 pub mod svg;
 pub mod table;
+pub mod text;

@@ -4,6 +4,8 @@
 mod eseries;
 /// Exported decks run through ngspice and compared with the closed forms.
 mod ngspice;
+/// `design --pick N --out DIR`: the bench files written by the binary.
+mod bench_outputs;
 /// Schematic, bias window, frequency response and BOM outputs.
 mod pictures;
 mod spec_errors;

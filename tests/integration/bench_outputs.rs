@@ -134,8 +134,20 @@ fn check_files(name: &str, dir: &Path, sized_caps: bool) {
     for label in ["frequency (Hz)", "gain (dB)"] {
         assert!(response.contains(label), "{name}: response lacks {label}");
     }
-    for svg in [&schematic, &bias, &response] {
+    // Rendered by resvg (an independent SVG renderer): it must parse, be
+    // opaque and carry ink (PNG copies with GATEWRIGHT_PICTURES=DIR).
+    let tag: String = name
+        .chars()
+        .map(|c| if c.is_ascii_alphanumeric() { c } else { '-' })
+        .collect();
+    for (f, svg) in [
+        ("schematic", &schematic),
+        ("bias", &bias),
+        ("response", &response),
+    ] {
         assert!(svg.trim_start().starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
+        let ink = super::pictures::render(svg, &format!("bench-{tag}-{f}"));
+        assert!(ink > 2000, "{name}: {f} has only {ink} drawn pixels");
     }
     let report = read("report.txt");
     for section in [

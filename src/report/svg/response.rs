@@ -36,9 +36,14 @@ pub fn low_crossing(points: &[(f64, f64)], level_db: f64) -> Option<f64> {
     })
 }
 
-/// Decibels with two decimals and no SI prefix (`-0.67`, not `-672m`).
+/// Decibels to three significant figures and never with an SI prefix
+/// (`11`, `-0.67`, not `-672m`).
 fn decibels(x: f64) -> String {
-    format!("{x:.2}")
+    if x.abs() >= 1.0 {
+        format_sig(x, 3)
+    } else {
+        format!("{x:.2}")
+    }
 }
 
 fn hertz(f: f64) -> String {

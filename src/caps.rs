@@ -472,7 +472,7 @@ fn confirm(
             Ok(CornerSweep {
                 label: c.label.clone(),
                 nominal_caps_hz,
-                pass: low_caps_hz.map_or(true, |f| f <= f_low_hz * (1.0 + SLACK)),
+                pass: low_caps_hz.is_none_or(|f| f <= f_low_hz * (1.0 + SLACK)),
                 low_caps_hz,
             })
         })

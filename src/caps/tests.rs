@@ -78,7 +78,11 @@ fn capacitance_matches_reference_check_values() {
 // hand numbers: ro 50 kΩ, Rp 5 kΩ, gm 2 mS -> 55k/101 = 544.55 Ω.
 #[test]
 fn source_resistance_includes_ro() {
-    close(source_resistance_ohm(2e-3, 1.0 / 50e3, 5e3), 55e3 / 101.0, 1e-12);
+    close(
+        source_resistance_ohm(2e-3, 1.0 / 50e3, 5e3),
+        55e3 / 101.0,
+        1e-12,
+    );
     close(source_resistance_ohm(2e-3, 0.0, 5e3), 500.0, 1e-12);
 }
 
@@ -136,12 +140,20 @@ fn every_device_corner_is_confirmed() {
     let gm_max = p
         .corners
         .iter()
-        .map(|c| crate::analysis::quick(&p, t, &values, &c.law, &p.rails).eval.gm_s)
+        .map(|c| {
+            crate::analysis::quick(&p, t, &values, &c.law, &p.rails)
+                .eval
+                .gm_s
+        })
         .fold(0.0, f64::max);
     let cs = plan.caps.iter().find(|c| c.designator == "C_S").unwrap();
     // RS at its −5 % extreme is the smallest shunt.
     let req_nominal_rs = par(&[1e3, 1.0 / gm_max]);
-    assert!(cs.r_ohm <= req_nominal_rs, "{} > {req_nominal_rs}", cs.r_ohm);
+    assert!(
+        cs.r_ohm <= req_nominal_rs,
+        "{} > {req_nominal_rs}",
+        cs.r_ohm
+    );
     assert!(plan.rule.contains("f_low/10"));
 }
 

@@ -121,10 +121,7 @@ fn render(
     let spice = netlist_to_spice(
         &net,
         &format!("gatewright design #{} {}", view.design.rank, t.id()),
-        &[
-            format!("{}: nominal device", view.name),
-            cap_note,
-        ],
+        &[format!("{}: nominal device", view.name), cap_note],
     );
     let window = p.spec.limits.id_max_a.map(|m| (0.0, m));
     vec![
@@ -149,10 +146,7 @@ fn render(
 /// Write every file into `dir` through temporary files renamed at the end.
 fn write_all(dir: &Path, force: bool, files: &[(&str, String)]) -> Result<()> {
     let created = match std::fs::metadata(dir) {
-        Ok(m) if !m.is_dir() => bail!(
-            "`--out` = {}: exists and is not a folder",
-            dir.display()
-        ),
+        Ok(m) if !m.is_dir() => bail!("`--out` = {}: exists and is not a folder", dir.display()),
         Ok(_) if !force => bail!(
             "`--out` = {}: already exists; pass --force to replace the files in it",
             dir.display()
@@ -186,8 +180,8 @@ fn stage_and_rename(dir: &Path, files: &[(&str, String)], temps: &mut Vec<PathBu
     for (name, text) in files {
         let tmp = dir.join(format!(".{name}.{pid}.tmp"));
         temps.push(tmp.clone());
-        let mut f = std::fs::File::create(&tmp)
-            .with_context(|| format!("writing `{}`", tmp.display()))?;
+        let mut f =
+            std::fs::File::create(&tmp).with_context(|| format!("writing `{}`", tmp.display()))?;
         f.write_all(text.as_bytes())
             .and_then(|()| f.sync_all())
             .with_context(|| format!("writing `{}`", tmp.display()))?;

@@ -210,22 +210,27 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
     out.push_str(&format!(
         "dissipation: worst {}{}\n",
         with_unit(f.pd_worst_w, "W"),
-        f.pd_max_w.map_or(" (no rating given)".to_string(), |m| format!(
-            " of {} rated ({} of the rating)",
-            with_unit(m, "W"),
-            pct(f.pd_worst_w / m)
-        ))
+        f.pd_max_w
+            .map_or(" (no rating given)".to_string(), |m| format!(
+                " of {} rated ({} of the rating)",
+                with_unit(m, "W"),
+                pct(f.pd_worst_w / m)
+            ))
     ));
     out.push_str(&format!(
         "VDS: up to {} in operation{}\n",
         with_unit(f.vds_worst_v, "V"),
-        f.vds_max_v.map_or(" (no rating given)".to_string(), |m| format!(
-            ", rated {}",
-            with_unit(m, "V")
-        ))
+        f.vds_max_v
+            .map_or(" (no rating given)".to_string(), |m| format!(
+                ", rated {}",
+                with_unit(m, "V")
+            ))
     ));
 
-    heading(&mut out, "Operating point at each device corner (nominal resistors)");
+    heading(
+        &mut out,
+        "Operating point at each device corner (nominal resistors)",
+    );
     let mut t = table(vec![
         "corner",
         "ID",
@@ -272,7 +277,13 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
     ));
 
     heading(&mut out, "Requirements and margins");
-    let mut t = table(vec!["requirement", "required", "achieved", "margin", "holds"]);
+    let mut t = table(vec![
+        "requirement",
+        "required",
+        "achieved",
+        "margin",
+        "holds",
+    ]);
     for c in &v.checks {
         t.add_row(vec![
             c.name.to_string(),

@@ -15,6 +15,9 @@
 //!   (battery-stage, high-voltage-dmos); `--pick 1` must exit 1 and write
 //!   nothing.
 
+// The helpers below run only inside tests: a failed unwrap is a failed test.
+#![allow(clippy::unwrap_used)]
+
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
@@ -47,10 +50,7 @@ fn example(name: &str) -> PathBuf {
 fn fresh_dir(tag: &str) -> PathBuf {
     static COUNTER: AtomicUsize = AtomicUsize::new(0);
     let n = COUNTER.fetch_add(1, Ordering::Relaxed);
-    let d = std::env::temp_dir().join(format!(
-        "gatewright-bench-{}-{tag}-{n}",
-        std::process::id()
-    ));
+    let d = std::env::temp_dir().join(format!("gatewright-bench-{}-{tag}-{n}", std::process::id()));
     let _ = std::fs::remove_dir_all(&d);
     d
 }
@@ -99,7 +99,10 @@ fn ngspice_or_skip(test: &str) -> bool {
         .is_ok_and(|s| s.success());
     if !present {
         let ci = std::env::var("CI").is_ok_and(|v| v == "true");
-        assert!(!ci, "{test}: ngspice is not installed and CI=true requires it");
+        assert!(
+            !ci,
+            "{test}: ngspice is not installed and CI=true requires it"
+        );
         loud(&format!(
             "\n*** SKIP {test}: ngspice not found on PATH; the deck was not simulated ***\n"
         ));
@@ -265,7 +268,10 @@ fn refuses_an_existing_folder_without_force() {
     let e = stderr(&o);
     assert!(e.contains("already exists") && e.contains("--force"), "{e}");
     assert!(!dir.join("report.txt").exists());
-    assert_eq!(std::fs::read_to_string(dir.join("notes.txt")).unwrap(), "mine");
+    assert_eq!(
+        std::fs::read_to_string(dir.join("notes.txt")).unwrap(),
+        "mine"
+    );
     no_temps(&dir);
     let _ = std::fs::remove_dir_all(&dir);
 }
@@ -279,8 +285,14 @@ fn force_replaces_the_files_and_keeps_others() {
     let o = pick_out(&example("cable-driver"), &dir, &["--force"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let report = std::fs::read_to_string(dir.join("report.txt")).unwrap();
-    assert!(report.starts_with("cable-driving follower — design #1"), "{report}");
-    assert_eq!(std::fs::read_to_string(dir.join("notes.txt")).unwrap(), "mine");
+    assert!(
+        report.starts_with("cable-driving follower — design #1"),
+        "{report}"
+    );
+    assert_eq!(
+        std::fs::read_to_string(dir.join("notes.txt")).unwrap(),
+        "mine"
+    );
     check_files("cable-driver --force", &dir, false);
     let _ = std::fs::remove_dir_all(&dir);
 }
@@ -312,7 +324,10 @@ fn pick_without_out_prints_the_report() {
     let o = gatewright(&["design", spec.to_str().unwrap(), "--pick", "2"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let text = String::from_utf8_lossy(&o.stdout);
-    assert!(text.starts_with("piezo sensor buffer — design #2"), "{text}");
+    assert!(
+        text.starts_with("piezo sensor buffer — design #2"),
+        "{text}"
+    );
     assert!(text.contains("Requirements and margins"));
 }
 

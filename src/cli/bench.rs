@@ -161,6 +161,17 @@ fn write_all(dir: &Path, force: bool, files: &[(&str, String)]) -> Result<()> {
             return Err(e).with_context(|| format!("`--out` = {}", dir.display()));
         }
     };
+    // A folder in the way of a file would make its rename fail after the
+    // others had moved: refuse before writing anything.
+    for (name, _) in files {
+        let target = dir.join(name);
+        if target.is_dir() {
+            bail!(
+                "`--out` = {}: `{name}` is a folder; remove it or choose another --out",
+                dir.display()
+            );
+        }
+    }
     let mut temps: Vec<PathBuf> = Vec::new();
     let result = stage_and_rename(dir, files, &mut temps);
     if result.is_err() {
@@ -192,4 +203,62 @@ fn stage_and_rename(dir: &Path, files: &[(&str, String)], temps: &mut Vec<PathBu
             .with_context(|| format!("moving `{}` into place", target.display()))?;
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn scratch(tag: &str) -> PathBuf {
+        let d = std::env::temp_dir().join(format!("gatewright-write-{}-{tag}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&d);
+        d
+    }
+
+    // A file that cannot be staged (its folder does not exist) fails the
+    // run after another was staged: the staged temporary file and the folder
+    // this run created are both gone.
+    #[test]
+    fn a_failed_write_leaves_nothing_behind() {
+        let dir = scratch("fail");
+        let files = [
+            ("a.txt", "first".to_string()),
+            ("missing/b.txt", "second".to_string()),
+        ];
+        let e = write_all(&dir, false, &files).unwrap_err();
+        assert!(format!("{e:#}").contains("writing"), "{e:#}");
+        assert!(!dir.exists(), "{} is left behind", dir.display());
+    }
+
+    // With --force into an existing folder, the folder stays and holds no
+    // temporary file and no partial output.
+    #[test]
+    fn a_failed_forced_write_keeps_the_folder_clean() {
+        let dir = scratch("force");
+        std::fs::create_dir_all(&dir).unwrap();
+        std::fs::write(dir.join("a.txt"), "old").unwrap();
+        let files = [
+            ("a.txt", "new".to_string()),
+            ("missing/b.txt", "second".to_string()),
+        ];
+        assert!(write_all(&dir, true, &files).is_err());
+        let names: Vec<String> = std::fs::read_dir(&dir)
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+            .collect();
+        assert_eq!(names, vec!["a.txt".to_string()]);
+        assert_eq!(std::fs::read_to_string(dir.join("a.txt")).unwrap(), "old");
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+
+    #[test]
+    fn a_folder_in_the_way_is_refused_before_writing() {
+        let dir = scratch("inway");
+        std::fs::create_dir_all(dir.join("b.txt")).unwrap();
+        let files = [("a.txt", "x".to_string()), ("b.txt", "y".to_string())];
+        let e = write_all(&dir, true, &files).unwrap_err();
+        assert!(e.to_string().contains("`b.txt` is a folder"), "{e}");
+        assert!(!dir.join("a.txt").exists());
+        let _ = std::fs::remove_dir_all(&dir);
+    }
 }

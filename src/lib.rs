@@ -2,7 +2,8 @@
 //!
 //! Layers, each using only those above it:
 //! `units` → `catalog` → `device` → `spec`, `netlist` → `topology` →
-//! `analysis` → `search` → `verify` → `rank` → `ratings` → `report` → `cli`.
+//! `analysis` → `search` → `verify` → `rank` → `ratings` → `caps` (capacitor
+//! sizing, confirmed by `verify`) → `summary`, `bench` (views) → `report` → `cli`.
 //!
 //! ```
 //! use gatewright::topology::{by_id, evaluate, Rails};

@@ -9,7 +9,7 @@
 //!   tests run on these (piezo-buffer sizes capacitors for `f_low`,
 //!   cable-driver has no `f_low`).
 //! - SLOW: yield a design, but the search takes about a minute or more in a
-//!   debug build (line-gain, dual-rail); run only with
+//!   debug build (line-gain about one, dual-rail several); run only with
 //!   `GATEWRIGHT_SLOW_EXAMPLES=1`.
 //! - INFEASIBLE: no design meets them by construction of the scenario
 //!   (battery-stage, high-voltage-dmos); `--pick 1` must exit 1 and write
@@ -233,7 +233,7 @@ fn fast_examples_write_all_six_files() {
 fn slow_examples_write_all_six_files_when_asked() {
     if std::env::var("GATEWRIGHT_SLOW_EXAMPLES").is_err() {
         loud(&format!(
-            "\n*** SKIP slow examples {SLOW:?} (about a minute each in a debug build); \
+            "\n*** SKIP slow examples {SLOW:?} (one to several minutes each in a debug build); \
              set GATEWRIGHT_SLOW_EXAMPLES=1 to run them ***\n"
         ));
         return;

@@ -2,7 +2,9 @@
 //!
 //! Layers, each using only those above it:
 //! `units` → `catalog` → `device` → `spec`, `netlist` → `topology` →
-//! `analysis` → `search` → `verify` → `crosscheck` → `rank` → `ratings` → `report` → `cli`.
+//! `analysis` → `search` → `verify` → `crosscheck` → `rank` → `ratings` → `caps`
+//! (capacitor sizing, confirmed by `verify`) → `summary`, `bench` (views) →
+//! `report` → `cli`.
 //!
 //! ```
 //! use gatewright::topology::{by_id, evaluate, Rails};
@@ -17,6 +19,8 @@
 #![forbid(unsafe_code)]
 
 pub mod analysis;
+pub mod bench;
+pub mod caps;
 pub mod catalog;
 pub mod cli;
 pub mod crosscheck;

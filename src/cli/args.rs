@@ -117,6 +117,18 @@ pub(crate) struct DesignArgs {
     /// (instead of the nominal one).
     #[arg(long)]
     pub(crate) spice_corners: bool,
+    /// Take the design ranked N (1 = best) to the bench: print its report,
+    /// or write its files with `--out`.
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u16).range(1..))]
+    pub(crate) pick: Option<u16>,
+    /// Folder for the picked design's files (report.txt, bom.csv,
+    /// design.cir, schematic.svg, bias.svg, response.svg); must not exist
+    /// unless `--force`.
+    #[arg(long, value_name = "DIR", requires = "pick")]
+    pub(crate) out: Option<PathBuf>,
+    /// Replace the files in an existing `--out` folder.
+    #[arg(long, requires = "out")]
+    pub(crate) force: bool,
 }
 
 #[derive(Debug, Args)]

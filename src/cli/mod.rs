@@ -6,6 +6,7 @@
 //! pipe ends the program quietly.
 
 mod args;
+mod bench;
 mod load;
 mod verify_cmd;
 
@@ -184,7 +185,7 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     let opts = Options {
         nominal_only: a.nominal,
         prefer: a.prefer.into(),
-        top: usize::from(a.top),
+        top: usize::from(a.top).max(a.pick.map_or(0, usize::from)),
         method: a.search.into(),
         ..Options::default()
     };
@@ -198,7 +199,12 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     for w in crate::crosscheck::retain_verified(&full, &mut outcome) {
         talk(&format!("warning: {w}"));
     }
-    let report_view = summary::design_report(&full, &shelf.name, &outcome, Vec::new());
+    let cautions = crate::bench::spec_cautions(&full);
+    let report_view = summary::design_report(&full, &shelf.name, &outcome, cautions);
+    if let Some(n) = a.pick {
+        let n = usize::from(n);
+        return bench::run(&full, &report_view, &outcome, n, a.out.as_deref(), a.force);
+    }
     let text = match a.format {
         Format::Json => json(&report_view)?,
         Format::Csv => report::csv::designs(&report_view),

@@ -7,3 +7,4 @@ pub mod spice;
 pub mod svg;
 pub mod table;
 pub mod verify_table;
+pub mod text;

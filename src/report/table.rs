@@ -8,7 +8,7 @@ use comfy_table::{presets, ContentArrangement, Table};
 /// Width the tables are laid out for (fits a 120-column terminal).
 pub const WIDTH: u16 = 120;
 
-fn table(header: Vec<&str>) -> Table {
+pub(crate) fn table(header: Vec<&str>) -> Table {
     let mut t = Table::new();
     t.load_preset(presets::ASCII_FULL_CONDENSED)
         .set_content_arrangement(ContentArrangement::Dynamic)
@@ -22,7 +22,7 @@ fn q(v: f64, unit: &str) -> String {
     format!("{}{unit}", format_sig(v, 4))
 }
 
-fn corner_row(p: &PointView) -> Vec<String> {
+pub(crate) fn corner_row(p: &PointView) -> Vec<String> {
     vec![
         p.label.clone(),
         q(p.id_a, "A"),
@@ -147,7 +147,7 @@ pub fn design(r: &DesignReport) -> String {
         }
     ));
     for c in &r.cautions {
-        out.push_str(&format!("CAUTION: {c}\n"));
+        out.push_str(&format!("{c}\n"));
     }
     if !r.designs.is_empty() {
         let mut t = table(vec![

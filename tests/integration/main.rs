@@ -2,6 +2,8 @@
 
 /// Top designs of every example: closed form vs solver vs ngspice; `verify`.
 mod crosscheck;
+/// `design --pick N --out DIR`: the bench files written by the binary.
+mod bench_outputs;
 /// IEC 60063 tables and catalog queries.
 mod eseries;
 /// Exported decks run through ngspice and compared with the closed forms.

@@ -140,7 +140,7 @@ fn fonts() -> &'static usvg::Options<'static> {
 
 /// Renders the SVG with resvg, saves it when asked, and returns the number
 /// of pixels that are not white.
-fn render(svg: &str, name: &str) -> usize {
+pub(crate) fn render(svg: &str, name: &str) -> usize {
     let tree = usvg::Tree::from_str(svg, fonts()).unwrap_or_else(|e| panic!("{name}: {e}"));
     let size = tree.size().to_int_size();
     let mut pixmap = tiny_skia::Pixmap::new(size.width(), size.height())

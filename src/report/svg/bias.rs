@@ -25,7 +25,6 @@ use crate::analysis::{tolerance_extremes, Problem};
 use crate::device::{Region, SquareLaw};
 use crate::ratings::with_unit;
 use crate::topology::{Gate, OpPoint, Topology};
-use crate::units::format_sig;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
@@ -195,8 +194,10 @@ fn volts(v: f64) -> String {
     with_unit(v, "V")
 }
 
+/// A current with its own SI prefix (`17.4 uA`, `2.1 mA`): a fixed "mA"
+/// would print `17.4m mA` for microamps.
 fn milliamps(a: f64) -> String {
-    format!("{} mA", format_sig(a * 1e3, 3))
+    with_unit(a, "A")
 }
 
 fn draw(root: &DrawingArea<SVGBackend, Shift>, d: &BiasData, title: &str) -> Result<(), String> {

@@ -36,6 +36,16 @@ pub fn low_crossing(points: &[(f64, f64)], level_db: f64) -> Option<f64> {
     })
 }
 
+/// Decibels to three significant figures and never with an SI prefix
+/// (`11`, `-0.67`, not `-672m`).
+fn decibels(x: f64) -> String {
+    if x.abs() >= 1.0 {
+        format_sig(x, 3)
+    } else {
+        format!("{x:.2}")
+    }
+}
+
 fn hertz(f: f64) -> String {
     crate::ratings::with_unit(f, "Hz")
 }
@@ -116,7 +126,7 @@ fn draw(
             red.stroke_width(1),
         ))
         .map_err(e)?
-        .label(format!("−3 dB: {} dB", format_sig(level, 3)))
+        .label(format!("−3 dB: {} dB", decibels(level)))
         .legend(move |(x, y)| PathElement::new([(x, y), (x + 24, y)], red.stroke_width(1)));
     chart
         .draw_series(LineSeries::new(
@@ -124,7 +134,7 @@ fn draw(
             blue.stroke_width(2),
         ))
         .map_err(e)?
-        .label(format!("gain, mid-band {} dB", format_sig(top, 3)))
+        .label(format!("gain, mid-band {} dB", decibels(top)))
         .legend(move |(x, y)| PathElement::new([(x, y), (x + 24, y)], blue.stroke_width(2)));
     if let Some(f) = f_low_hz.filter(|f| f.is_finite() && *f >= f0 && *f <= f1) {
         chart

@@ -98,6 +98,13 @@ pub(crate) fn values(t: &dyn Topology, text: &str, family: Family) -> Result<Vec
         };
         let v = crate::units::parse_value(val).with_context(|| format!("`--values` {name}"))?;
         let zero_ok = t.may_be_zero(i, family);
+        if v == 0.0 && !zero_ok {
+            bail!(
+                "`--values` {name} = {val}: {name} of {} may not be 0 Ω (a wire); \
+                 it must be between 1 mΩ and 1 TΩ",
+                t.id()
+            );
+        }
         if v < 0.0 || (v == 0.0 && !zero_ok) || !(1e-3..=1e12).contains(&v) && v != 0.0 {
             bail!(
                 "`--values` {name} = {val}: must be between 1 mΩ and 1 TΩ{}",
@@ -135,6 +142,10 @@ pub(crate) fn parse_span(text: &str) -> Result<(f64, f64)> {
     let b = crate::units::parse_value(b)?;
     if a <= 0.0 || b <= 0.0 {
         bail!("`{text}`: both ends must be greater than 0");
+    }
+    let modelled = crate::spec::R_MIN_OHM..=crate::spec::R_MAX_OHM;
+    if !modelled.contains(&a) || !modelled.contains(&b) {
+        bail!("`{text}`: both ends must be between 1 mΩ and 1 TΩ (1e-3 to 1e12 Ω), the range gatewright models");
     }
     Ok((a.min(b), a.max(b)))
 }

@@ -2,13 +2,23 @@
 //! typed error, never panic, and an accepted specification must be sane.
 #![no_main]
 
+use gatewright::device::classes::{self, DeviceClass};
 use libfuzzer_sys::fuzz_target;
+use std::sync::OnceLock;
+
+/// The built-in device classes, read once: `spec::parse` is
+/// `parse_with(text, &classes::builtin()?)`, and the class file is fixed
+/// input, so re-reading it per run only slows the fuzzer.
+fn builtin() -> &'static [DeviceClass] {
+    static CLASSES: OnceLock<Vec<DeviceClass>> = OnceLock::new();
+    CLASSES.get_or_init(|| classes::builtin().unwrap_or_default())
+}
 
 fuzz_target!(|data: &[u8]| {
     let Ok(text) = std::str::from_utf8(data) else {
         return;
     };
-    match gatewright::spec::parse(text) {
+    match gatewright::spec::parse_with(text, builtin()) {
         Ok(s) => {
             // An accepted spec holds finite, ordered numbers (validate.rs rules).
             assert!(s.rl_ohm.is_finite() && s.rl_ohm > 0.0, "rl {}", s.rl_ohm);

@@ -415,10 +415,10 @@ impl Device {
         const SLACK: f64 = 1e-9;
         let hi = self
             .vgs_max_v
-            .map_or(true, |m| vgs_v <= m + SLACK * m.abs().max(1.0));
+            .is_none_or(|m| vgs_v <= m + SLACK * m.abs().max(1.0));
         let lo = self
             .vgs_min_v
-            .map_or(true, |m| vgs_v >= m - SLACK * m.abs().max(1.0));
+            .is_none_or(|m| vgs_v >= m - SLACK * m.abs().max(1.0));
         hi && lo
     }
 }

@@ -210,7 +210,7 @@ fn closed_form(k: f64, u: f64, b: f64, c: f64, d: f64) -> f64 {
         let (vds, vov) = (c - d * r, u - b * r);
         let consistent =
             r >= -1e-18 && r <= upper * (1.0 + 1e-12) && vov > 0.0 && vds <= vov * (1.0 + 1e-12);
-        if consistent && best.map_or(true, |b0| residual(r).abs() < residual(b0).abs()) {
+        if consistent && best.is_none_or(|b0| residual(r).abs() < residual(b0).abs()) {
             best = Some(r.max(0.0));
         }
     }

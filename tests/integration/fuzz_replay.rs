@@ -13,7 +13,9 @@ use std::path::Path;
 
 /// The fuzz targets, each with the parser it drives (the same three as
 /// `fuzz/fuzz_targets/`).
-const TARGETS: [(&str, fn(&str)); 3] = [
+type Target = (&'static str, fn(&str));
+
+const TARGETS: [Target; 3] = [
     ("spec_parse", |t| {
         let _ = spec::parse(t).map_err(|e| e.to_string());
     }),

@@ -13,7 +13,12 @@ fuzz_target!(|data: &[u8]| {
             assert!(!cat.parts.is_empty());
             for w in cat.parts.windows(2) {
                 if let [a, b] = w {
-                    assert!(a.ohms < b.ohms, "not strictly ascending: {} {}", a.ohms, b.ohms);
+                    assert!(
+                        a.ohms < b.ohms,
+                        "not strictly ascending: {} {}",
+                        a.ohms,
+                        b.ohms
+                    );
                 }
             }
             for p in &cat.parts {

@@ -121,7 +121,12 @@ pub fn parse_value(text: &str) -> Result<f64, ParseValueError> {
         .filter(|(_, c)| c.is_alphabetic() && !matches!(c, 'e' | 'E'))
         .collect();
     let [(pos, c)] = letters.as_slice() else {
-        return Err(err(if letters.is_empty() {
+        // Words such as `nan`, `inf` or `four` carry no digit at all: they
+        // are not numbers, whatever letters they happen to contain.
+        let has_digit = body_nounit.chars().any(|c| c.is_ascii_digit());
+        return Err(err(if !has_digit {
+            "no digits"
+        } else if letters.is_empty() {
             "not a number"
         } else {
             "more than one scale letter"
@@ -211,6 +216,17 @@ pub fn format_sig(v: f64, sig: usize) -> String {
     // Round to `sig` figures first so 999.99 becomes 1k rather than 1000.
     let rounded = round_sig(v, sig);
     let mag = rounded.abs();
+    if !(1e-15 * (1.0 - 1e-12)..1e15).contains(&mag) {
+        // Beyond the prefixes: scientific notation (`2.5e20`, `1e-310`),
+        // which `parse_value` reads back, instead of hundreds of digits.
+        let text = format!("{:.*e}", sig - 1, rounded);
+        return match text.split_once('e') {
+            Some((m, e)) if m.contains('.') => {
+                format!("{}e{e}", m.trim_end_matches('0').trim_end_matches('.'))
+            }
+            _ => text,
+        };
+    }
     let (scale, prefix) = PREFIXES
         .iter()
         .copied()
@@ -240,9 +256,11 @@ pub fn round_sig(v: f64, sig: usize) -> f64 {
     if v == 0.0 || !v.is_finite() {
         return v;
     }
-    let exp = v.abs().log10().floor() as i32;
-    let factor = 10f64.powi(sig as i32 - 1 - exp);
-    (v * factor).round() / factor
+    // Through decimal text: exact rounding, and no overflowing scale factor
+    // for subnormal or huge values (10^(sig − 1 − exp) is infinite for
+    // v = 1e-310, which turned the result into NaN).
+    let sig = sig.clamp(1, 17);
+    format!("{:.*e}", sig - 1, v).parse::<f64>().unwrap_or(v)
 }
 
 #[cfg(test)]
@@ -288,6 +306,39 @@ mod tests {
             let e = parse_value(text).unwrap_err();
             assert!(e.to_string().contains(&format!("`{text}`")), "{e}");
         }
+    }
+
+    #[test]
+    fn extreme_magnitudes_print_finite_and_read_back() {
+        // Found by fuzzing: 1e-310 (subnormal) printed as "NaNf". Beyond the
+        // prefixes (f to T) values print in scientific notation.
+        for (v, want) in [
+            (1e-310, "1e-310"),
+            (2.5e20, "2.5e20"),
+            (-1.25e300, "-1.25e300"),
+            (5e-16, "5e-16"),
+            (999e12, "999T"),
+        ] {
+            let shown = format_value(v);
+            assert_eq!(shown, want, "{v}");
+            let back = parse_value(&shown).unwrap();
+            assert!(((back - v) / v).abs() < 1e-12, "{v} -> {shown} -> {back}");
+        }
+        assert_eq!(round_sig(1e-310, 3), 1e-310);
+        assert_eq!(round_sig(1234.5, 3), 1230.0);
+    }
+
+    #[test]
+    fn words_without_digits_are_not_numbers() {
+        // `nan`, `inf` and `four` contain SI letters (n, f, ...) but no digit:
+        // the reason must say so, not blame the scale letters.
+        for text in ["nan", "inf", "four", "abc", "Infinity"] {
+            assert_eq!(parse_value(text).unwrap_err().reason, "no digits", "{text}");
+        }
+        assert_eq!(
+            parse_value("10kk").unwrap_err().reason,
+            "more than one scale letter"
+        );
     }
 
     #[test]

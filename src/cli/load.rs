@@ -128,11 +128,14 @@ fn place(
             );
         };
         let zero_ok = t.may_be_zero(i, family);
-        if !v.is_finite()
-            || v < 0.0
-            || (v == 0.0 && !zero_ok)
-            || !(1e-3..=1e12).contains(&v) && v != 0.0
-        {
+        if v == 0.0 && !zero_ok {
+            bail!(
+                "{field} {name} = {written}: {name} of {} may not be 0 Ω (a wire); \
+                 it must be between 1 mΩ and 1 TΩ",
+                t.id()
+            );
+        }
+        if !v.is_finite() || v < 0.0 || !(1e-3..=1e12).contains(&v) && v != 0.0 {
             bail!(
                 "{field} {name} = {written}: must be between 1 mΩ and 1 TΩ{}",
                 if zero_ok { " (or 0 for a wire)" } else { "" }
@@ -181,6 +184,10 @@ pub(crate) fn parse_span(text: &str) -> Result<(f64, f64)> {
     let b = crate::units::parse_value(b)?;
     if a <= 0.0 || b <= 0.0 {
         bail!("`{text}`: both ends must be greater than 0");
+    }
+    let modelled = crate::spec::R_MIN_OHM..=crate::spec::R_MAX_OHM;
+    if !modelled.contains(&a) || !modelled.contains(&b) {
+        bail!("`{text}`: both ends must be between 1 mΩ and 1 TΩ (1e-3 to 1e12 Ω), the range gatewright models");
     }
     Ok((a.min(b), a.max(b)))
 }

@@ -20,7 +20,13 @@ use crate::analysis::Problem;
 use crate::catalog::snap;
 use crate::report;
 use crate::search::{self, Options};
+use crate::spec::{R_MAX_OHM, R_MIN_OHM};
 use crate::summary;
+
+/// Smallest divider ratio `snap --ratio` takes, and 1 minus the largest
+/// (dimensionless): a 1e-6 tap is far below what 0.1 % parts resolve
+/// (common practice).
+const RATIO_MIN: f64 = 1e-6;
 
 /// Entry point of the binary.
 pub fn main() -> ExitCode {
@@ -108,6 +114,12 @@ fn snap_cmd(a: args::SnapArgs) -> Result<ExitCode> {
     })?;
     if let Some(ratio_text) = &a.ratio {
         let ratio = crate::units::parse_value(ratio_text).context("`--ratio`")?;
+        if !(RATIO_MIN..=1.0 - RATIO_MIN).contains(&ratio) {
+            bail!(
+                "`--ratio` = {ratio_text}: must lie between 1e-6 and 1 − 1e-6 (R2 over R1 + R2; \
+                 a finer tap is beyond what resistor tolerances resolve)"
+            );
+        }
         let total = a
             .total
             .as_deref()
@@ -130,6 +142,9 @@ fn snap_cmd(a: args::SnapArgs) -> Result<ExitCode> {
         let v = crate::units::parse_value(text).with_context(|| format!("VALUE `{text}`"))?;
         if v <= 0.0 {
             bail!("VALUE `{text}` = {v}: a resistance must be greater than 0");
+        }
+        if !(R_MIN_OHM..=R_MAX_OHM).contains(&v) {
+            bail!("VALUE `{text}`: must be between 1 mΩ and 1 TΩ (1e-3 to 1e12 Ω), the range gatewright models");
         }
         let cat =
             crate::catalog::Catalog::from_series(series, None, (v / 100.0).max(1e-3), v * 100.0)?;
@@ -212,6 +227,11 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
         Format::Spice => design_spice(&full, &outcome, a.spice_corners),
     };
     emit(&text)?;
+    if outcome.designs.is_empty() && a.format == Format::Csv {
+        // CSV rows are designs only; the reasons for none go to the talk
+        // stream so a script still sees why.
+        talk(report::table::design(&report_view).trim_end());
+    }
     if outcome.nominal_only {
         talk("warning: --nominal checks the nominal device and nominal resistor values only; the designs are not worst-case safe");
     }

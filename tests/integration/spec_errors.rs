@@ -230,7 +230,7 @@ fn bad_cases() -> Vec<(&'static str, String, &'static str)> {
         ("gain zero", with("gain = 4.0", "gain = 0"), "`target.gain` = 0 (line 3): must be greater than 0 (the gain is a magnitude; `polarity` sets the sign)"),
         ("gain NaN", with("gain = 4.0", "gain = nan"), "`target.gain` = nan (line 3): must be a finite number (NaN and infinity are not values)"),
         ("gain infinite", with("gain = 4.0", "gain = inf"), "`target.gain` = inf (line 3): must be a finite number (NaN and infinity are not values)"),
-        ("gain NaN as text", with("gain = 4.0", "gain = \"nan\""), "`target.gain` = \"nan\" (line 3): not a number (more than one scale letter); write a number or engineering notation such as \"4k7\", \"2.2M\", \"100n\""),
+        ("gain NaN as text", with("gain = 4.0", "gain = \"nan\""), "`target.gain` = \"nan\" (line 3): not a number (no digits); write a number or engineering notation such as \"4k7\", \"2.2M\", \"100n\""),
         ("gain not a number", with("gain = 4.0", "gain = \"4x7\""), "`target.gain` = \"4x7\" (line 3): not a number (unknown scale letter `x`); write a number or engineering notation such as \"4k7\", \"2.2M\", \"100n\""),
         ("gain boolean", with("gain = 4.0", "gain = true"), "`target.gain` = true (line 3): must be a number or an engineering string such as \"4k7\", not a boolean"),
         ("gain 1e30", with("gain = 4.0", "gain = 1e30"), "`target.gain` = 1e30 (line 3): must be between 0.001 and 10000 (−60 to 80 dB), the range one stage covers"),

@@ -1,0 +1,133 @@
+//! Exit codes and streams of the binary: 0 designs, 1 infeasible with the
+//! reasons on stdout, 2 bad input with nothing on stdout; a closed pipe
+//! ends the program quietly; NO_COLOR keeps escapes out of the table. The
+//! conventions are the command-line habits of Unix tools (common practice;
+//! NO_COLOR as the informal convention of that name).
+
+use crate::cli_errors::{run, temp_dir, BASE};
+use std::io::Read;
+use std::process::{Command, Stdio};
+
+/// BASE asking for 80 dB from one stage into a 10 Ω load with a 1 mA
+/// limit: legal input, but no worst-case design can meet it.
+fn infeasible() -> String {
+    BASE.replace("gain = 4.0", "gain = 9000")
+        .replace("rl = \"10k\"", "rl = \"10\"")
+        .replace("[parts]", "[limits]\nid_max = \"1m\"\n[parts]")
+        .replace(
+            "series = \"E24\"",
+            "series = \"E6\"\nrange = [\"100\", \"1M\"]",
+        )
+}
+
+#[test]
+#[allow(clippy::unwrap_used)]
+fn infeasible_exits_1_with_the_explanation_on_stdout() {
+    let dir = temp_dir("streams-infeasible");
+    std::fs::write(dir.join("spec.toml"), infeasible()).unwrap();
+    let out = run(&["design", "spec.toml"], &dir);
+    let stdout = String::from_utf8(out.stdout).unwrap();
+    assert_eq!(out.status.code(), Some(1), "{stdout}");
+    assert!(stdout.contains("no feasible design"), "{stdout}");
+    // One reason per topology that applies to a JFET, each naming it.
+    let jfet = gatewright::device::Family::NJfet;
+    for t in gatewright::topology::TOPOLOGIES
+        .iter()
+        .filter(|t| t.supports(jfet))
+    {
+        assert!(
+            stdout.contains(&format!("{}:", t.id())),
+            "no reason for {}:\n{stdout}",
+            t.id()
+        );
+    }
+    assert!(!String::from_utf8_lossy(&out.stderr).contains("error"));
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+#[allow(clippy::unwrap_used)]
+fn bad_input_exits_2_with_nothing_on_stdout() {
+    let dir = temp_dir("streams-bad");
+    std::fs::write(
+        dir.join("spec.toml"),
+        BASE.replace("gain = 4.0", "gain = -4"),
+    )
+    .unwrap();
+    for args in [
+        &["design", "spec.toml"][..],
+        &["design", "spec.toml", "--format", "json"],
+        &["design", "spec.toml", "--format", "csv"],
+        &[
+            "analyze",
+            "spec.toml",
+            "--topology",
+            "self-bias",
+            "--values",
+            "RG=1M,RS=1k,RD=3k",
+        ],
+    ] {
+        let out = run(args, &dir);
+        assert_eq!(out.status.code(), Some(2), "{args:?}");
+        assert!(out.stdout.is_empty(), "{args:?}");
+        let stderr = String::from_utf8(out.stderr).unwrap();
+        assert!(
+            stderr.starts_with("error: ") && stderr.contains("`target.gain` = -4"),
+            "{stderr}"
+        );
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+#[allow(clippy::unwrap_used)]
+fn a_closed_pipe_ends_quietly() {
+    for args in [
+        &["topologies"][..],
+        &[
+            "snap", "1", "2", "3", "4k7", "10k", "1M", "--series", "E192",
+        ],
+    ] {
+        let mut child = Command::new(env!("CARGO_BIN_EXE_gatewright"))
+            .args(args)
+            .stdout(Stdio::piped())
+            .stderr(Stdio::piped())
+            .spawn()
+            .unwrap();
+        let mut stdout = child.stdout.take().unwrap();
+        let mut one = [0u8; 1];
+        stdout.read_exact(&mut one).unwrap();
+        drop(stdout);
+        let out = child.wait_with_output().unwrap();
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert!(stderr.is_empty(), "{args:?}: stderr {stderr}");
+        // Quiet: 0 (the reader went away, nothing failed); never the 101
+        // of a panic.
+        assert!(
+            matches!(out.status.code(), Some(0)),
+            "{args:?}: {:?}",
+            out.status
+        );
+    }
+}
+
+#[test]
+#[allow(clippy::unwrap_used)]
+fn no_color_means_no_escapes() {
+    let dir = temp_dir("streams-color");
+    let ex = concat!(env!("CARGO_MANIFEST_DIR"), "/examples/battery-stage.toml");
+    for args in [&["design", ex][..], &["snap", "4k7"], &["topologies"]] {
+        let out = run(args, &dir);
+        assert!(out.status.code().is_some_and(|c| c <= 1), "{args:?}");
+        assert!(!out.stdout.is_empty(), "{args:?}");
+        assert!(
+            !out.stdout.contains(&0x1b),
+            "{args:?}: ANSI escape in stdout"
+        );
+        assert!(
+            !out.stderr.contains(&0x1b),
+            "{args:?}: ANSI escape in stderr"
+        );
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}

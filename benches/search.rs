@@ -4,8 +4,8 @@
 
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 use gatewright::catalog::{Catalog, ESeries};
-use gatewright::spec::CatalogChoice;
 use gatewright::search::{self, Options, Shelf};
+use gatewright::spec::CatalogChoice;
 use gatewright::spec::ValidSpec;
 
 fn load(name: &str) -> ValidSpec {
@@ -28,18 +28,29 @@ fn shelf(spec: &ValidSpec, series: Option<ESeries>, range: Option<(f64, f64)>) -
 fn bench(c: &mut Criterion) {
     let mut g = c.benchmark_group("design");
     g.sample_size(10);
-    for name in ["piezo-buffer", "cable-driver", "battery-stage", "line-gain", "dual-rail", "high-voltage-dmos"] {
+    for name in [
+        "piezo-buffer",
+        "cable-driver",
+        "battery-stage",
+        "line-gain",
+        "dual-rail",
+        "high-voltage-dmos",
+    ] {
         let spec = load(name);
         let sh = shelf(&spec, None, None);
         g.bench_function(format!("{name}/{}", sh.name), |b| {
-            b.iter(|| search::run(black_box(&spec), black_box(&sh), &Options::default()).expect("search"))
+            b.iter(|| {
+                search::run(black_box(&spec), black_box(&sh), &Options::default()).expect("search")
+            })
         });
     }
     for name in ["piezo-buffer", "cable-driver", "high-voltage-dmos"] {
         let spec = load(name);
         let sh = shelf(&spec, Some(ESeries::E96), Some((1.0, 10e6)));
         g.bench_function(format!("{name}/E96-1R-10M"), |b| {
-            b.iter(|| search::run(black_box(&spec), black_box(&sh), &Options::default()).expect("search"))
+            b.iter(|| {
+                search::run(black_box(&spec), black_box(&sh), &Options::default()).expect("search")
+            })
         });
     }
     g.finish();

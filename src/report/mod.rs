@@ -6,5 +6,5 @@ pub mod csv;
 pub mod spice;
 pub mod svg;
 pub mod table;
-pub mod verify_table;
 pub mod text;
+pub mod verify_table;

@@ -248,7 +248,7 @@ impl MissTracker {
                     c.name,
                     c.required,
                     c.achieved,
-                    crate::units::format_sig(-100.0 * c.margin, 2)
+                    percent(-100.0 * c.margin)
                 ),
                 binding: c.name.to_string(),
                 best: c.achieved.clone(),
@@ -260,6 +260,16 @@ impl MissTracker {
                 best: "no candidate".to_string(),
             },
         }
+    }
+}
+
+/// A percentage for people: two decimals, or two significant figures in
+/// scientific form when it is tiny (never an SI prefix).
+fn percent(x: f64) -> String {
+    if x.abs() >= 0.01 || x == 0.0 {
+        format!("{x:.2}")
+    } else {
+        format!("{x:.1e}")
     }
 }
 

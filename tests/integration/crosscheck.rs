@@ -26,7 +26,7 @@ use std::time::Instant;
 
 /// Examples whose search takes minutes in an unoptimised (debug) build;
 /// they run in optimised builds only (`cargo test --release`).
-const SLOW_IN_DEBUG: &[&str] = &["dual-rail.toml"];
+const SLOW_IN_DEBUG: &[&str] = &[];
 
 /// The top designs of one example.
 struct Example {

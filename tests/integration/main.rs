@@ -1,12 +1,12 @@
 //! Integration tests.
 
-/// Top designs of every example: closed form vs solver vs ngspice; `verify`.
-mod crosscheck;
 /// `design --pick N --out DIR`: the bench files written by the binary.
 mod bench_outputs;
 /// Bad specification files and arguments through the binary: exit 2,
 /// pinned messages.
 mod cli_errors;
+/// Top designs of every example: closed form vs solver vs ngspice; `verify`.
+mod crosscheck;
 /// IEC 60063 tables and catalog queries.
 mod eseries;
 /// Fuzz corpora and regressions replayed through the parsers.
@@ -15,13 +15,13 @@ mod fuzz_replay;
 mod ngspice;
 /// Schematic, bias window, frequency response and BOM outputs.
 mod pictures;
+/// Extreme but legal specifications: no NaN or infinity in any output.
+mod robustness;
 /// The default search against the exhaustive reference.
 mod search_props;
 mod spec_errors;
-/// Shared helpers (ngspice runs).
-mod util;
-/// Extreme but legal specifications: no NaN or infinity in any output.
-mod robustness;
 /// Exit codes and streams of the binary.
 mod streams;
+/// Shared helpers (ngspice runs).
+mod util;
 mod verify_props;

@@ -1,4 +1,4 @@
-#![allow(missing_docs)]
+#![allow(missing_docs, clippy::expect_used)]
 //! The full search on the shipped examples (worst case), on E24 as shipped
 //! and on E96 over 1 Ω–10 MΩ, plus one independent nodal solve.
 

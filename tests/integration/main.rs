@@ -1,4 +1,5 @@
 //! Integration tests.
+#![allow(clippy::expect_used, clippy::unwrap_used)]
 
 /// `design --pick N --out DIR`: the bench files written by the binary.
 mod bench_outputs;

@@ -333,27 +333,9 @@ pub struct Check {
 fn fmt(v: f64, unit: &str) -> String {
     if unit.is_empty() {
         // A ratio (gain): plain digits, no SI prefix.
-        return plain(v);
+        return crate::units::format_plain(v, 4);
     }
     format!("{}{unit}", crate::units::format_sig(v, 4))
-}
-
-/// Four significant figures without an SI prefix (`0.8289`, `57`, `7.078`).
-fn plain(v: f64) -> String {
-    if v == 0.0 || !v.is_finite() {
-        return format!("{v}");
-    }
-    let digits = (3 - v.abs().log10().floor() as i32).clamp(0, 12) as usize;
-    let mut s = format!("{v:.digits$}");
-    if s.contains('.') {
-        while s.ends_with('0') {
-            s.pop();
-        }
-        if s.ends_with('.') {
-            s.pop();
-        }
-    }
-    s
 }
 
 /// The gain window `[lo, hi]` of |gain|, V/V.

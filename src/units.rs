@@ -251,6 +251,29 @@ pub fn format_sig(v: f64, sig: usize) -> String {
     format!("{text}{prefix}")
 }
 
+/// A ratio (such as a gain) with `sig` significant figures and no SI
+/// prefix: `0.883`, `-4.92`, `57`.
+pub fn format_plain(v: f64, sig: usize) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return if v.is_finite() {
+            "0".to_string()
+        } else {
+            "n/a".to_string()
+        };
+    }
+    let digits = (sig as i32 - 1 - v.abs().log10().floor() as i32).clamp(0, 15) as usize;
+    let mut s = format!("{v:.digits$}");
+    if s.contains('.') {
+        while s.ends_with('0') {
+            s.pop();
+        }
+        if s.ends_with('.') {
+            s.pop();
+        }
+    }
+    s
+}
+
 /// Round to `sig` significant figures.
 pub fn round_sig(v: f64, sig: usize) -> f64 {
     if v == 0.0 || !v.is_finite() {
@@ -358,6 +381,14 @@ mod tests {
         for (v, want) in cases {
             assert_eq!(format_value(v), want, "{v}");
         }
+    }
+
+    #[test]
+    fn ratios_print_without_prefixes() {
+        assert_eq!(format_plain(0.8829, 3), "0.883");
+        assert_eq!(format_plain(-4.9186, 3), "-4.92");
+        assert_eq!(format_plain(57.0, 4), "57");
+        assert_eq!(format_plain(0.0, 3), "0");
     }
 
     #[test]

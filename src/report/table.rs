@@ -2,7 +2,7 @@
 
 use crate::catalog::snap::{RatioPair, SnapResult};
 use crate::summary::{AnalysisView, DesignReport, PointView};
-use crate::units::{format_sig, format_value};
+use crate::units::{format_plain, format_sig, format_value};
 use comfy_table::{presets, ContentArrangement, Table};
 
 /// Width the tables are laid out for (fits a 120-column terminal).
@@ -32,7 +32,7 @@ pub(crate) fn corner_row(p: &PointView) -> Vec<String> {
         q(p.vs_v, "V"),
         q(p.vd_v, "V"),
         q(p.gm_s, "S"),
-        format_sig(p.gain, 4),
+        format_plain(p.gain, 4),
         q(p.zin_ohm, "Ω"),
         q(p.zout_ohm, "Ω"),
         match p.region {
@@ -181,9 +181,9 @@ pub fn design(r: &DesignReport) -> String {
                 vals.join("\n"),
                 format!(
                     "{}\n{}\n{}",
-                    format_sig(d.gain.min, 3),
-                    format_sig(d.gain.nominal, 3),
-                    format_sig(d.gain.max, 3)
+                    format_plain(d.gain.min, 3),
+                    format_plain(d.gain.nominal, 3),
+                    format_plain(d.gain.max, 3)
                 ),
                 q(d.zin_ohm, "Ω"),
                 q(d.zout_ohm, "Ω"),

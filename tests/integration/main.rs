@@ -16,6 +16,8 @@ mod fuzz_replay;
 mod ngspice;
 /// Schematic, bias window, frequency response and BOM outputs.
 mod pictures;
+/// Random valid specifications through the default pipeline (10,000 cases).
+mod pipeline_props;
 /// Extreme but legal specifications: no NaN or infinity in any output.
 mod robustness;
 /// The default search against the exhaustive reference.

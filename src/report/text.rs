@@ -258,9 +258,9 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
     );
     out.push_str(&format!(
         "gain from the source EMF, loaded: {} / {} / {} V/V (min / nominal / max)\n",
-        format_sig(d.gain.min, 4),
-        format_sig(d.gain.nominal, 4),
-        format_sig(d.gain.max, 4)
+        crate::units::format_plain(d.gain.min, 4),
+        crate::units::format_plain(d.gain.nominal, 4),
+        crate::units::format_plain(d.gain.max, 4)
     ));
     out.push_str(&format!(
         "input impedance at least {}; output impedance at most {}\n",

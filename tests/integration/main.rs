@@ -18,6 +18,8 @@ mod ngspice;
 mod pictures;
 /// Random valid specifications through the default pipeline (10,000 cases).
 mod pipeline_props;
+/// The random-specification generator shared by the property tests.
+mod random_spec;
 /// Extreme but legal specifications: no NaN or infinity in any output.
 mod robustness;
 /// The default search against the exhaustive reference.

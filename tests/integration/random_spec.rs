@@ -1,0 +1,99 @@
+//! Random valid specifications for the property tests: device strength
+//! scaled to the resistor decade so that currents and gains are sensible,
+//! and a mix of families, rails, targets and tolerances.
+
+use gatewright::catalog::ESeries;
+use gatewright::device::{Device, Family, ParamRange, Params, Strength};
+use gatewright::spec::{CatalogChoice, Limits, Parts, Polarity, Supply, Target, ValidSpec};
+use proptest::prelude::*;
+
+pub(crate) fn device(family: Family, a: f64, b: f64, sa: f64, sb: f64) -> Device {
+    let params = match family {
+        Family::NEnhancementMosfet => Params::Enhancement {
+            vth: ParamRange::between(a, a * sa),
+            strength: Strength::K(ParamRange::between(b, b * sb)),
+        },
+        _ => Params::Depletion {
+            idss: ParamRange::between(b, b * sb),
+            vgs_off: ParamRange::between(-a, -a * sa),
+        },
+    };
+    Device {
+        family,
+        params,
+        lambda: ParamRange::exact(0.0),
+        vgs_max_v: if family == Family::NJfet {
+            Some(0.0)
+        } else {
+            None
+        },
+        vgs_min_v: None,
+        vds_max_v: None,
+        pd_max_w: None,
+        source: "spec".to_string(),
+    }
+}
+
+#[derive(Debug, Clone)]
+pub(crate) struct Case {
+    pub(crate) spec: ValidSpec,
+}
+
+pub(crate) fn case() -> impl Strategy<Value = Case> {
+    (
+        0usize..3,
+        (0.6f64..3.0, 1.0f64..1.6),
+        (0.3f64..3.0, 1.0f64..2.0),
+        (6.0f64..30.0, prop_oneof![Just(0.0), -15.0f64..-3.0]),
+        (prop_oneof![0.3f64..0.95, 1.5f64..12.0], 0.15f64..0.45),
+        (2.0f64..4.0, 0.0f64..0.9, 0.0f64..2.5),
+        (0usize..3, prop_oneof![Just(0.0), Just(0.02), Just(0.1)]),
+    )
+        .prop_map(
+            |(
+                fam,
+                (a, sa),
+                (bm, sb),
+                (vdd, vss),
+                (gain, tol),
+                (decade, zin_frac, vds_min),
+                (polar, rtol),
+            )| {
+                let family = Family::ALL[fam];
+                // Device strength scaled to the decade so currents are sensible.
+                let r_lo = 10f64.powf(decade.floor());
+                let b = match family {
+                    Family::NEnhancementMosfet => bm * 1e-3 * (1e3 / r_lo),
+                    _ => bm * 1e-3 * (1e3 / r_lo).sqrt(),
+                };
+                let spec = ValidSpec {
+                    name: "random".to_string(),
+                    target: Target {
+                        gain,
+                        tolerance: tol,
+                        polarity: [Polarity::Any, Polarity::Inverting, Polarity::NonInverting]
+                            [polar],
+                    },
+                    supply: Supply {
+                        vdd_v: vdd,
+                        vss_v: vss,
+                        tolerance: 0.0,
+                    },
+                    rl_ohm: r_lo * 5.0,
+                    zin_min_ohm: r_lo * 10f64.powf(zin_frac),
+                    source_resistance_ohm: 0.0,
+                    vds_min_v: vds_min,
+                    limits: Limits::default(),
+                    f_low_hz: None,
+                    device: device(family, a, b, sa, sb),
+                    parts: Parts {
+                        catalog: CatalogChoice::Series(ESeries::E12),
+                        tolerance: Some(rtol),
+                        r_min_ohm: r_lo,
+                        r_max_ohm: r_lo * 10.0,
+                    },
+                };
+                Case { spec }
+            },
+        )
+}

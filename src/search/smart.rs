@@ -69,6 +69,32 @@ struct Axis {
     positions: Vec<usize>,
     options: Vec<Vec<f64>>,
     gate_axis: bool,
+    /// For a divider that sets Zin: the parallel resistance of each option
+    /// and its maxima over blocks of [`BLOCK`] options (range maxima for
+    /// the Zin bound of a box).
+    zin: Option<(Vec<f64>, Vec<f64>)>,
+}
+
+/// Block length of the range-maximum table.
+const BLOCK: usize = 64;
+
+impl Axis {
+    /// Largest Zin over the options `s..e` (None when Zin is not set here).
+    fn zin_max(&self, s: usize, e: usize) -> Option<f64> {
+        let (z, blocks) = self.zin.as_ref()?;
+        let mut m: f64 = 0.0;
+        let mut i = s;
+        while i < e {
+            if i % BLOCK == 0 && i + BLOCK <= e {
+                m = m.max(blocks[i / BLOCK]);
+                i += BLOCK;
+            } else {
+                m = m.max(z[i]);
+                i += 1;
+            }
+        }
+        Some(m)
+    }
 }
 
 /// The square law with λ folded into k at a given VDS (λ then 0): with
@@ -347,6 +373,9 @@ impl Bounds<'_> {
         // Spread (λ = 0): the ratio of |gain| between corners does not depend
         // on RD, so a lower bound of max/min above hi/lo rules the box out.
         let mut ratio = 1.0;
+        // The level: no point reaches above `min_ub` at its weakest corner.
+        let g_target = s.target.gain;
+        let mut level_error = ((g_target - min_ub) / g_target).max(0.0);
         if self.lambda_free && (s.source_resistance_ohm == 0.0 || !t.input_at_source()) {
             let rd_ref = self.r_min;
             let mut max_lb: f64 = 0.0;
@@ -357,7 +386,11 @@ impl Bounds<'_> {
                     lb_i = lb_i.min(gain_at_m(v, g_lo_up[i], rd_ref, cmb, 1.0 - self.tol).0);
                     ub_i = ub_i.max(gain_at_m(v, g_hi_dn[i], rd_ref, cmb, 1.0 + self.tol).0);
                 }
-                max_lb = max_lb.max(lb_i);
+                // With a source resistance the gain from the EMF is av times
+                // Zin/(Zin + Rsig) >= zin_min/(zin_min + Rsig) for any
+                // feasible point: a valid lower bound needs that factor.
+                let rsig = s.source_resistance_ohm;
+                max_lb = max_lb.max(lb_i * s.zin_min_ohm / (s.zin_min_ohm + rsig));
                 min_ub2 = min_ub2.min(ub_i);
             }
             let rd_part = if self.rd.is_some() {
@@ -371,18 +404,25 @@ impl Bounds<'_> {
             if min_ub2 > 0.0 {
                 ratio = (max_lb / min_ub2).max(1.0) * rd_part;
             }
+            // ... and every point reaches at least `max_lb` at its strongest.
+            level_error = level_error.max((max_lb - g_target) / g_target);
             if self.rd.is_none() && max_lb > hi * (1.0 + SLACK) {
                 return None;
             }
         }
-        Some(optimistic(
+        let mut m = optimistic(
             s,
             ratio,
             headroom_ub - s.vds_min_v,
             power_lb,
-            f64::INFINITY,
+            axes.iter()
+                .zip(ranges)
+                .find_map(|(a, r)| a.zin_max(r.0, r.1))
+                .map_or(f64::INFINITY, |z| z / s.zin_min_ohm),
             self.parts_floor,
-        ))
+        );
+        m.gain_error = m.gain_error.max(level_error);
+        Some(m)
     }
 }
 
@@ -661,9 +701,22 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             })
             .collect();
         pairs.sort_by(|x, y| x.0.total_cmp(&y.0).then(x.1.total_cmp(&y.1)));
+        let options: Vec<Vec<f64>> = pairs.into_iter().map(|(_, r1, r2)| vec![r1, r2]).collect();
+        let zin = zin_from_divider.then(|| {
+            let z: Vec<f64> = options
+                .iter()
+                .map(|o| o[0] * o[1] / (o[0] + o[1]))
+                .collect();
+            let blocks = z
+                .chunks(BLOCK)
+                .map(|c| c.iter().copied().fold(0.0, f64::max))
+                .collect();
+            (z, blocks)
+        });
         axes.push(Axis {
             positions: vec![a, b],
-            options: pairs.into_iter().map(|(_, r1, r2)| vec![r1, r2]).collect(),
+            options,
+            zin,
             gate_axis: true,
         });
     }
@@ -676,6 +729,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
                     .map(|x| vec![x])
                     .collect(),
                 gate_axis: false,
+                zin: None,
             });
         }
     }
@@ -868,6 +922,11 @@ fn visit(
             let wc = corners_only(p, t, v);
             if !all_pass(&margins(p, t, &wc)) {
                 col.miss.note(p, t, v, &wc);
+                return;
+            }
+            // Nominal-value metrics bound the worst-case ones.
+            let parts = v.iter().filter(|x| **x > 0.0).count() + t.capacitors(v).len();
+            if !col.may_enter(&Metrics::new(&p.spec, &wc, parts)) {
                 return;
             }
             None

@@ -261,12 +261,12 @@ pub fn ratio(rows: &[RatioPair], wanted: f64) -> String {
             format_value(r.r1_ohm),
             format_value(r.r2_ohm),
             format_value(r.total_ohm),
-            format_sig(r.ratio, 6),
+            format_plain(r.ratio, 6),
             format!("{:+.3} %", 100.0 * r.error),
         ]);
     }
     format!(
         "divider ratio R2/(R1+R2) = {}\n{t}\n",
-        format_sig(wanted, 6)
+        format_plain(wanted, 6)
     )
 }

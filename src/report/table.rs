@@ -22,7 +22,31 @@ fn q(v: f64, unit: &str) -> String {
     format!("{}{unit}", format_sig(v, 4))
 }
 
-pub(crate) fn corner_row(p: &PointView) -> Vec<String> {
+/// The operating point at the nominal device and at every corner, one row
+/// each (shared by `analyze` and the bench report).
+pub(crate) fn corner_table(nominal: &PointView, corners: &[PointView]) -> Table {
+    let mut t = table(vec![
+        "corner",
+        "ID",
+        "VGS",
+        "VDS",
+        "VG",
+        "VS",
+        "VD",
+        "gm",
+        "gain",
+        "Zin",
+        "Zout",
+        "saturated",
+    ]);
+    t.add_row(corner_row(nominal));
+    for c in corners {
+        t.add_row(corner_row(c));
+    }
+    t
+}
+
+fn corner_row(p: &PointView) -> Vec<String> {
     vec![
         p.label.clone(),
         q(p.id_a, "A"),
@@ -63,28 +87,11 @@ pub fn analysis(v: &AnalysisView, order: &[&str]) -> String {
         v.summary,
         values.join(" ")
     ));
-    let mut t = table(vec![
-        "corner",
-        "ID",
-        "VGS",
-        "VDS",
-        "VG",
-        "VS",
-        "VD",
-        "gm",
-        "gain",
-        "Zin",
-        "Zout",
-        "saturated",
-    ]);
     let mut nominal = v.nominal.clone();
     if v.nominal_is_midpoint {
         nominal.label = "nominal (midpoints)".to_string();
     }
-    t.add_row(corner_row(&nominal));
-    for c in &v.corners {
-        t.add_row(corner_row(c));
-    }
+    let t = corner_table(&nominal, &v.corners);
     out.push_str(&t.to_string());
     out.push('\n');
     if v.nominal_is_midpoint {

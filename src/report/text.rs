@@ -3,7 +3,7 @@
 //! here computes physics.
 
 use super::bom::BomRow;
-use super::table::{corner_row, table};
+use super::table::{corner_table, table};
 use crate::bench::{BenchView, Connection, PartKind};
 use crate::caps::CapPlan;
 use crate::ratings::with_unit;
@@ -231,24 +231,7 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
         &mut out,
         "Operating point at each device corner (nominal resistors)",
     );
-    let mut t = table(vec![
-        "corner",
-        "ID",
-        "VGS",
-        "VDS",
-        "VG",
-        "VS",
-        "VD",
-        "gm",
-        "gain",
-        "Zin",
-        "Zout",
-        "saturated",
-    ]);
-    t.add_row(corner_row(&v.nominal));
-    for c in &v.corners {
-        t.add_row(corner_row(c));
-    }
+    let t = corner_table(&v.nominal, &v.corners);
     out.push_str(&t.to_string());
     out.push('\n');
 

@@ -11,12 +11,11 @@
 // Helpers outside #[test] fns unwrap too: any failure should fail the test.
 #![allow(clippy::unwrap_used)]
 
-use crate::util::{get, loud, ngspice_or_skip, rel, run_ngspice, TOLERANCE};
+use crate::util::{loud, ngspice_or_skip, rel, spice_op, TOLERANCE};
 use gatewright::analysis::{quick, Problem};
 use gatewright::catalog::Catalog;
 use gatewright::crosscheck::{crosscheck, Quantity, REL_TOL};
-use gatewright::netlist::{Element, GROUND};
-use gatewright::report::spice::{designator, per_corner};
+use gatewright::report::spice::per_corner;
 use gatewright::search::{self, Design, Options, Shelf};
 use gatewright::spec::CatalogChoice;
 use std::path::{Path, PathBuf};
@@ -179,30 +178,9 @@ fn ngspice_confirms_the_top_designs_of_every_example() {
                 let ctx = format!("{what} ({})", corner.label);
                 let ours = quick(p, t, &d.values, &corner.law, &p.rails);
                 let net = t.netlist(&d.values, &p.netlist_input(corner));
-                let (dn, sn, des) = net
-                    .elements
-                    .iter()
-                    .find_map(|el| match el {
-                        Element::Fet { d, s, .. } => Some((*d, *s, designator(el))),
-                        _ => None,
-                    })
-                    .unwrap_or_else(|| panic!("{ctx}: no FET"));
-                let printed = run_ngspice(&deck.text, &deck.file_name.replace(".cir", ""));
+                let op = spice_op(&net, &deck.text, &deck.file_name.replace(".cir", ""), &ctx);
                 runs += 1;
-                let volts = |n: usize| {
-                    if n == GROUND {
-                        0.0
-                    } else {
-                        get(&printed, &format!("v({})", net.nodes[n]), &ctx)
-                    }
-                };
-                let id = get(
-                    &printed,
-                    &format!("@{}[id]", des.to_ascii_lowercase()),
-                    &ctx,
-                );
-                let vds = volts(dn) - volts(sn);
-                let gain = get(&printed, &format!("vm({})", net.nodes[net.output]), &ctx);
+                let (id, vds, gain) = (op.id_a, op.vds_v, op.gain);
                 let pairs = [
                     (id, ours.eval.op.id_a),
                     (vds, ours.eval.op.vds_v),

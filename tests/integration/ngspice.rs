@@ -8,9 +8,9 @@
 //! Without ngspice the tests print a SKIP notice and pass, except under
 //! `CI=true`, where a missing ngspice is a failure.
 
-use crate::util::{get, loud, ngspice_or_skip, rel, run_ngspice, TOLERANCE};
+use crate::util::{get, loud, ngspice_or_skip, rel, run_ngspice, spice_op, TOLERANCE};
 use gatewright::device::{Device, Family, ParamRange, Params, Strength};
-use gatewright::netlist::{Element, FetKind, GROUND};
+use gatewright::netlist::{FetKind, GROUND};
 use gatewright::report::spice::{netlist_to_spice, per_corner, spice_number};
 use gatewright::topology::{by_id, evaluate, Caps, NetlistInput, Rails, TOPOLOGIES};
 
@@ -172,30 +172,9 @@ fn closed_forms_agree_with_ngspice_at_every_corner() {
                     ..input
                 },
             );
-            let Some((d, s, des)) = net.elements.iter().find_map(|el| match el {
-                Element::Fet { d, s, .. } => {
-                    Some((*d, *s, gatewright::report::spice::designator(el)))
-                }
-                _ => None,
-            }) else {
-                panic!("{ctx}: no FET in the netlist");
-            };
-            let printed = run_ngspice(&deck.text, &deck.file_name.replace(".cir", ""));
+            let op = spice_op(&net, &deck.text, &deck.file_name.replace(".cir", ""), &ctx);
             runs += 1;
-            let volts = |n: usize| {
-                if n == GROUND {
-                    0.0
-                } else {
-                    get(&printed, &format!("v({})", net.nodes[n]), &ctx)
-                }
-            };
-            let id = get(
-                &printed,
-                &format!("@{}[id]", des.to_ascii_lowercase()),
-                &ctx,
-            );
-            let vds = volts(d) - volts(s);
-            let gain = get(&printed, &format!("vm({})", net.nodes[net.output]), &ctx);
+            let (id, vds, gain) = (op.id_a, op.vds_v, op.gain);
             let want_gain = e.ss.gain_from_source(case.rsig_ohm).abs();
             let got = [
                 (rel(id, e.op.id_a), "ID", id, e.op.id_a),

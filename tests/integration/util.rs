@@ -94,3 +94,43 @@ pub(crate) fn get(values: &BTreeMap<String, f64>, key: &str, ctx: &str) -> f64 {
 pub(crate) fn rel(got: f64, want: f64) -> f64 {
     (got - want).abs() / want.abs().max(1e-12)
 }
+
+/// What ngspice reports for one deck of `net`: drain current (A), VDS (V)
+/// and |gain| at the analysis frequency (V/V).
+pub(crate) struct SpiceOp {
+    pub(crate) id_a: f64,
+    pub(crate) vds_v: f64,
+    pub(crate) gain: f64,
+}
+
+/// Run `deck` (written from `net`) through ngspice and read the FET's
+/// current, its VDS from the node voltages, and |V(out)|.
+pub(crate) fn spice_op(
+    net: &gatewright::netlist::Netlist,
+    deck: &str,
+    name: &str,
+    ctx: &str,
+) -> SpiceOp {
+    use gatewright::netlist::{Element, GROUND};
+    let (d, s, des) = net
+        .elements
+        .iter()
+        .find_map(|el| match el {
+            Element::Fet { d, s, .. } => Some((*d, *s, gatewright::report::spice::designator(el))),
+            _ => None,
+        })
+        .unwrap_or_else(|| panic!("{ctx}: no FET in the netlist"));
+    let printed = run_ngspice(deck, name);
+    let volts = |n: usize| {
+        if n == GROUND {
+            0.0
+        } else {
+            get(&printed, &format!("v({})", net.nodes[n]), ctx)
+        }
+    };
+    SpiceOp {
+        id_a: get(&printed, &format!("@{}[id]", des.to_ascii_lowercase()), ctx),
+        vds_v: volts(d) - volts(s),
+        gain: get(&printed, &format!("vm({})", net.nodes[net.output]), ctx),
+    }
+}

@@ -1,8 +1,7 @@
 use super::*;
 use crate::analysis::Problem;
 use crate::catalog::ESeries;
-use crate::device::{Device, Family, ParamRange, Params};
-use crate::spec::{CatalogChoice, Limits, Parts, Polarity, Supply, Target, ValidSpec};
+use crate::spec::ValidSpec;
 use crate::topology::by_id;
 
 /// REFERENCE §5 quotes three significant figures: half a unit in the
@@ -20,42 +19,9 @@ fn close(got: f64, want: f64, rel: f64) {
 /// spread.
 fn problem(idss: (f64, f64), vp: (f64, f64)) -> Problem {
     Problem::new(&ValidSpec {
-        name: "caps check".into(),
-        target: Target {
-            gain: 5.0,
-            tolerance: 0.5,
-            polarity: Polarity::Any,
-        },
-        supply: Supply {
-            vdd_v: 15.0,
-            vss_v: 0.0,
-            tolerance: 0.0,
-        },
-        rl_ohm: 10e3,
-        zin_min_ohm: 1e5,
         source_resistance_ohm: 1e3,
-        vds_min_v: 1.0,
-        limits: Limits::default(),
         f_low_hz: Some(20.0),
-        device: Device {
-            family: Family::NJfet,
-            params: Params::Depletion {
-                idss: ParamRange::between(idss.0, idss.1),
-                vgs_off: ParamRange::between(vp.0, vp.1),
-            },
-            lambda: ParamRange::exact(0.0),
-            vgs_max_v: Some(0.0),
-            vgs_min_v: None,
-            vds_max_v: None,
-            pd_max_w: None,
-            source: "spec".into(),
-        },
-        parts: Parts {
-            catalog: CatalogChoice::Series(ESeries::E24),
-            tolerance: Some(0.0),
-            r_min_ohm: 10.0,
-            r_max_ohm: 10e6,
-        },
+        ..crate::spec::jfet_test_spec(15.0, 0.0, idss, vp)
     })
 }
 

@@ -163,3 +163,54 @@ pub struct ValidSpec {
     /// Resistor choice.
     pub parts: Parts,
 }
+
+/// A JFET self-bias problem for unit tests in other modules: gain 5 ± 50 %,
+/// RL 10 kΩ, zin_min 100 kΩ, vds_min 1 V, ideal E24 parts over 10 Ω–10 MΩ,
+/// and the given rails and device spread. Tests change fields as needed.
+#[cfg(test)]
+pub(crate) fn jfet_test_spec(
+    vdd_v: f64,
+    vss_v: f64,
+    idss: (f64, f64),
+    vgs_off: (f64, f64),
+) -> ValidSpec {
+    use crate::device::{Family, ParamRange, Params};
+    ValidSpec {
+        name: "unit check".into(),
+        target: Target {
+            gain: 5.0,
+            tolerance: 0.5,
+            polarity: Polarity::Any,
+        },
+        supply: Supply {
+            vdd_v,
+            vss_v,
+            tolerance: 0.0,
+        },
+        rl_ohm: 10e3,
+        zin_min_ohm: 1e5,
+        source_resistance_ohm: 0.0,
+        vds_min_v: 1.0,
+        limits: Limits::default(),
+        f_low_hz: None,
+        device: Device {
+            family: Family::NJfet,
+            params: Params::Depletion {
+                idss: ParamRange::between(idss.0, idss.1),
+                vgs_off: ParamRange::between(vgs_off.0, vgs_off.1),
+            },
+            lambda: ParamRange::exact(0.0),
+            vgs_max_v: Some(0.0),
+            vgs_min_v: None,
+            vds_max_v: None,
+            pd_max_w: None,
+            source: "spec".into(),
+        },
+        parts: Parts {
+            catalog: CatalogChoice::Series(ESeries::E24),
+            tolerance: Some(0.0),
+            r_min_ohm: 10.0,
+            r_max_ohm: 10e6,
+        },
+    }
+}

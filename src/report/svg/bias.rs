@@ -412,49 +412,13 @@ fn draw_legend(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::device::{Device, Family, ParamRange, Params};
-    use crate::spec::{CatalogChoice, Limits, Parts, Polarity, Supply, Target, ValidSpec};
     use crate::topology::by_id;
 
     fn problem() -> Problem {
-        Problem::new(&ValidSpec {
-            name: "window".into(),
-            target: Target {
-                gain: 2.0,
-                tolerance: 0.5,
-                polarity: Polarity::Any,
-            },
-            supply: Supply {
-                vdd_v: 20.0,
-                vss_v: 0.0,
-                tolerance: 0.0,
-            },
-            rl_ohm: 10e3,
-            zin_min_ohm: 1e5,
-            source_resistance_ohm: 0.0,
-            vds_min_v: 1.0,
-            limits: Limits::default(),
-            f_low_hz: None,
-            device: Device {
-                family: Family::NJfet,
-                params: Params::Depletion {
-                    idss: ParamRange::between(4e-3, 12e-3),
-                    vgs_off: ParamRange::between(-2.0, -6.0),
-                },
-                lambda: ParamRange::exact(0.0),
-                vgs_max_v: Some(0.0),
-                vgs_min_v: None,
-                vds_max_v: None,
-                pd_max_w: None,
-                source: "spec".into(),
-            },
-            parts: Parts {
-                catalog: CatalogChoice::Series(crate::catalog::ESeries::E24),
-                tolerance: None,
-                r_min_ohm: 10.0,
-                r_max_ohm: 10e6,
-            },
-        })
+        let mut spec = crate::spec::jfet_test_spec(20.0, 0.0, (4e-3, 12e-3), (-2.0, -6.0));
+        spec.target.gain = 2.0;
+        spec.parts.tolerance = None;
+        Problem::new(&spec)
     }
 
     // REFERENCE §4.2 [computed]: with VG = 2.9539 V and RS = 2486.1 Ω the

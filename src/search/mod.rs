@@ -14,7 +14,8 @@ pub mod exhaustive;
 pub mod smart;
 
 use crate::analysis::{
-    all_pass, assess, gain_window, margins, worst_case, Problem, WorstCase, SLACK,
+    all_pass, assess, gain_window, lead_extremes, margins, worst_case, worst_case_of, Problem,
+    WorstCase, SLACK,
 };
 use crate::catalog::Catalog;
 use crate::rank::{order, pareto, score, Metrics, Prefer};
@@ -153,6 +154,9 @@ pub struct Effort {
     pub configurations: u64,
     /// Corner-only (nominal resistor) evaluations.
     pub corner_checks: u64,
+    /// Screens of a candidate on two tolerance extremes (every corner and
+    /// supply extreme), before any full check.
+    pub screen_checks: u64,
     /// Full worst-case evaluations (corners × tolerance extremes).
     pub exact_checks: u64,
     /// Combinations an exhaustive search over this shelf would visit.
@@ -216,17 +220,24 @@ pub(crate) struct MissTracker {
 }
 
 impl MissTracker {
-    /// True once any miss has been noted.
-    pub(crate) fn is_empty(&self) -> bool {
-        self.best.is_none()
-    }
-
-    pub(crate) fn note(&mut self, p: &Problem, t: &dyn Topology, values: &[f64], wc: &WorstCase) {
-        let worst = margins(p, t, wc)
+    /// The largest shortfall among the failing requirements (−∞ if none).
+    fn shortfall(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> f64 {
+        margins(p, t, wc)
             .into_iter()
             .filter(|m| !m.pass)
             .map(|m| -m.margin)
-            .fold(f64::NEG_INFINITY, f64::max);
+            .fold(f64::NEG_INFINITY, f64::max)
+    }
+
+    /// False when a candidate whose envelope contains `inner` cannot become
+    /// the closest miss: its shortfall is at least that of `inner`.
+    pub(crate) fn could_beat(&self, p: &Problem, t: &dyn Topology, inner: &WorstCase) -> bool {
+        let worst = Self::shortfall(p, t, inner);
+        self.best.as_ref().is_none_or(|(b, _, _)| worst < *b)
+    }
+
+    pub(crate) fn note(&mut self, p: &Problem, t: &dyn Topology, values: &[f64], wc: &WorstCase) {
+        let worst = Self::shortfall(p, t, wc);
         if worst.is_finite() && self.best.as_ref().is_none_or(|(b, _, _)| worst < *b) {
             self.best = Some((worst, values.to_vec(), *wc));
         }
@@ -307,13 +318,33 @@ impl Collector<'_> {
 
     /// Exact check of one candidate; keeps it when feasible.
     pub(crate) fn exact(&mut self, values: &[f64], tolerances: &[f64]) -> bool {
+        let parts = values.iter().filter(|v| **v > 0.0).count() + self.t.capacitors(values).len();
+        // The screen: two tolerance extremes. Failing there is failing;
+        // metrics there bound the full ones (analysis::lead_extremes).
+        self.effort.screen_checks += 1;
+        let lead = worst_case_of(self.p, self.t, &lead_extremes(self.t, values, tolerances));
+        if !all_pass(&margins(self.p, self.t, &lead)) {
+            // The full envelope only matters for the closest-miss answer,
+            // which is given only while no design is feasible, and only a
+            // candidate whose screen already beats the closest miss can.
+            if self.designs.is_empty() && self.miss.could_beat(self.p, self.t, &lead) {
+                self.effort.exact_checks += 1;
+                let wc = worst_case(self.p, self.t, values, tolerances);
+                self.miss.note(self.p, self.t, values, &wc);
+            }
+            return false;
+        }
+        if !self.may_enter(&Metrics::new(&self.p.spec, &lead, parts)) {
+            return false;
+        }
         self.effort.exact_checks += 1;
         let wc = worst_case(self.p, self.t, values, tolerances);
         if !all_pass(&margins(self.p, self.t, &wc)) {
-            self.miss.note(self.p, self.t, values, &wc);
+            if self.designs.is_empty() {
+                self.miss.note(self.p, self.t, values, &wc);
+            }
             return false;
         }
-        let parts = values.iter().filter(|v| **v > 0.0).count() + self.t.capacitors(values).len();
         let metrics = Metrics::new(&self.p.spec, &wc, parts);
         let score = score(&self.p.spec, &metrics, self.prefer);
         let at = self.top_scores.partition_point(|&x| x >= score);
@@ -462,6 +493,7 @@ pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, S
         effort.configurations += col.effort.configurations;
         effort.corner_checks += col.effort.corner_checks;
         effort.exact_checks += col.effort.exact_checks;
+        effort.screen_checks += col.effort.screen_checks;
         if col.designs.is_empty() {
             rejected.push(col.miss.rejection(
                 &p,

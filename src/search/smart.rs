@@ -29,7 +29,7 @@ use crate::analysis::{
     all_pass, corners_only, gain_window, margins, quick, Problem, WorstCase, SLACK,
 };
 use crate::device::SquareLaw;
-use crate::rank::{score, Metrics};
+use crate::rank::{score, Metrics, Prefer};
 use crate::topology::{Gate, Role, SignalContext, Topology};
 use std::collections::HashMap;
 
@@ -155,7 +155,75 @@ fn optimistic(
     }
 }
 
+/// `a ∥ b`, ohms (an infinite `b` leaves `a`).
+fn par2(a: f64, b: f64) -> f64 {
+    if b.is_infinite() {
+        a
+    } else {
+        a * b / (a + b)
+    }
+}
+
+/// The drain resistor scanned over the shelf for one box (λ = 0, where
+/// |gain| = A·(RD∥RL) with A fixed by the bias): `strong` is a lower bound
+/// of the largest A over the corners and the current-raising tolerance
+/// extreme, `weak` an upper bound of the smallest A at the other extreme,
+/// both for every point of the box. With RD at its own tolerance extremes
+/// every candidate then has a point with |gain| at least `strong·R'(RD(1+t))`
+/// and one with at most `weak·R'(RD(1−t))`.
+struct RdScan {
+    strong: f64,
+    weak: f64,
+    tol: f64,
+    rl: f64,
+    rd_cap: f64,
+}
+
+impl RdScan {
+    /// (some point's |gain| is at least, some point's at most), V/V.
+    fn gains(&self, rd: f64) -> (f64, f64) {
+        (
+            self.strong * par2(rd * (1.0 + self.tol), self.rl),
+            self.weak * par2(rd * (1.0 - self.tol), self.rl),
+        )
+    }
+
+    /// The shelf values that can keep every point inside `[lo, hi]` and
+    /// leave the headroom (RD at most `rd_cap`): one run of the sorted
+    /// shelf, since both gains rise with RD.
+    fn window(&self, values: &[f64], lo: f64, hi: f64) -> (usize, usize) {
+        let first = values.partition_point(|&x| self.gains(x).1 < lo * (1.0 - SLACK));
+        let last = values.partition_point(|&x| {
+            self.gains(x).0 <= hi * (1.0 + SLACK) && x <= self.rd_cap * (1.0 + 1e-9)
+        });
+        (first.min(last), last)
+    }
+
+    /// Lower bounds of the worst-corner gain error and of the gain spread
+    /// with this RD, fractions of the target `g`.
+    fn gain_terms(&self, rd: f64, g: f64) -> (f64, f64) {
+        let (strong, weak) = self.gains(rd);
+        (
+            ((strong - g).max(g - weak)).max(0.0) / g,
+            (strong - weak).max(0.0) / g,
+        )
+    }
+}
+
+/// The bound of one box.
+struct Bound {
+    /// Optimistic metrics: no point of the box does better on any of them.
+    metrics: Metrics,
+    /// Shelf indices `[first, last)` of the drain resistors that can work
+    /// anywhere in the box, when the drain resistor was scanned.
+    rd_window: Option<(usize, usize)>,
+}
+
 struct Bounds<'a> {
+    /// The shelf, ohms ascending (the drain resistor's choices).
+    rd_values: &'a [f64],
+    /// Ranking preference (the box bound is a score bound).
+    prefer: Prefer,
     parts_floor: usize,
     /// Role of each position.
     roles: &'static [Role],
@@ -194,7 +262,7 @@ impl Bounds<'_> {
     /// Optimistic metrics for every point of the box (each at least as good
     /// as any feasible point in it can reach), or `None` when no point of the
     /// box can be feasible.
-    fn bound(&self, axes: &[Axis], ranges: &[(usize, usize)], v: &mut [f64]) -> Option<Metrics> {
+    fn bound(&self, axes: &[Axis], ranges: &[(usize, usize)], v: &mut [f64]) -> Option<Bound> {
         let p = self.p;
         let t = self.t;
         let s = &p.spec;
@@ -286,11 +354,18 @@ impl Bounds<'_> {
         let rd_floor = if self.rd.is_some() { self.r_min } else { 0.0 };
         #[allow(unused_mut)]
         let mut headroom_ub = f64::INFINITY;
-        let mut id_floor = f64::INFINITY;
+        // The worst-case power is at least the power of any one corner, so
+        // the largest of the per-corner current floors bounds it.
+        let mut id_floor: f64 = 0.0;
         for i in 0..n {
             headroom_ub = headroom_ub.min(s.supply.vdd_v - vs_lo[i] - rd_floor * id_lo[i]);
-            id_floor = id_floor.min(id_lo[i]);
+            id_floor = id_floor.max(id_lo[i]);
         }
+        let zin_ratio = axes
+            .iter()
+            .zip(ranges)
+            .find_map(|(a, r)| a.zin_max(r.0, r.1))
+            .map_or(f64::INFINITY, |z| z / s.zin_min_ohm);
         let rails = t.bias(v, &p.rails);
         let power_lb = id_floor * (rails.drain_rail_v - rails.source_rail_v);
         // Gain bounds: |gain| rises with gm and RD and is monotone in each
@@ -339,9 +414,22 @@ impl Bounds<'_> {
         if min_ub < lo * (1.0 - SLACK) {
             return None;
         }
+        // With λ = 0 (gds = 0) and no source resistance inside the gain,
+        // |av| is proportional to RD∥RL at a fixed gm (common source and
+        // common gate alike): then the drain resistor can be scanned over
+        // the shelf below (`rd_scan`). Checked here rather than assumed.
+        let rl = s.rl_ohm;
+        let spread_free =
+            self.lambda_free && (s.source_resistance_ohm == 0.0 || !t.input_at_source());
+        let scan = spread_free && self.rd.is_some() && g_hi_dn[0] > 0.0 && {
+            let r0 = self.r_min;
+            let a = gain_at_m(v, g_hi_dn[0], r0, 0, 1.0).0;
+            let b = gain_at_m(v, g_hi_dn[0], 2.0 * r0, 0, 1.0).0;
+            a > 0.0 && ((b / a) / (par2(2.0 * r0, rl) / par2(r0, rl)) - 1.0).abs() < 1e-9
+        };
         // The smallest RD that can reach |gain| = lo at every corner (gain
         // rises with RD): the headroom cannot exceed what that RD leaves.
-        if self.rd.is_some() {
+        if self.rd.is_some() && !scan {
             let reach = |v: &mut [f64], rd: f64| {
                 (0..n).all(|i| {
                     (0..combos).any(|cmb| gain_at(v, g_hi[i], rd, cmb).0 >= lo * (1.0 - SLACK))
@@ -376,7 +464,8 @@ impl Bounds<'_> {
         // The level: no point reaches above `min_ub` at its weakest corner.
         let g_target = s.target.gain;
         let mut level_error = ((g_target - min_ub) / g_target).max(0.0);
-        if self.lambda_free && (s.source_resistance_ohm == 0.0 || !t.input_at_source()) {
+        let mut at_rd: Option<Bound> = None;
+        if spread_free {
             let rd_ref = self.r_min;
             let mut max_lb: f64 = 0.0;
             let mut min_ub2 = f64::INFINITY;
@@ -409,20 +498,59 @@ impl Bounds<'_> {
             if self.rd.is_none() && max_lb > hi * (1.0 + SLACK) {
                 return None;
             }
+            if scan {
+                let unit = par2(rd_ref, rl);
+                let scan = RdScan {
+                    strong: max_lb / unit,
+                    weak: min_ub2 / unit,
+                    tol: self.tol,
+                    rl,
+                    rd_cap,
+                };
+                let mut best: Option<(f64, Metrics)> = None;
+                let window = scan.window(self.rd_values, lo, hi);
+                for &x in &self.rd_values[window.0..window.1] {
+                    let (err, spread) = scan.gain_terms(x, g_target);
+                    let mut m = optimistic(s, 1.0, 0.0, power_lb, 1.0, self.parts_floor);
+                    m.gain_error = err.max(level_error);
+                    m.gain_spread = spread;
+                    m.headroom_v = (0..n)
+                        .map(|i| s.supply.vdd_v - vs_lo[i] - x * id_lo[i])
+                        .fold(f64::INFINITY, f64::min)
+                        - s.vds_min_v;
+                    m.zin_ratio = zin_ratio;
+                    let sc = score(s, &m, self.prefer);
+                    if best.as_ref().is_none_or(|(b, _)| sc > *b) {
+                        best = Some((sc, m));
+                    }
+                }
+                match best {
+                    Some((_, metrics)) => {
+                        at_rd = Some(Bound {
+                            metrics,
+                            rd_window: Some(window),
+                        })
+                    }
+                    None => return None,
+                }
+            }
+        }
+        if at_rd.is_some() {
+            return at_rd;
         }
         let mut m = optimistic(
             s,
             ratio,
             headroom_ub - s.vds_min_v,
             power_lb,
-            axes.iter()
-                .zip(ranges)
-                .find_map(|(a, r)| a.zin_max(r.0, r.1))
-                .map_or(f64::INFINITY, |z| z / s.zin_min_ohm),
+            zin_ratio,
             self.parts_floor,
         );
         m.gain_error = m.gain_error.max(level_error);
-        Some(m)
+        Some(Bound {
+            metrics: m,
+            rd_window: None,
+        })
     }
 }
 
@@ -762,6 +890,8 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
     let parts_floor =
         roles.len() - zero_able + t.capacitors(&vec![1.0; roles.len()]).len() - zero_able;
     let bounds = Bounds {
+        rd_values: &shelf.values,
+        prefer: col.prefer,
         parts_floor,
         roles,
         tol: shelf
@@ -791,15 +921,32 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             let mut scratch = v.clone();
             col.effort.corner_checks += 1;
             if axes.is_empty() || bounds.bound(&axes, &ranges, &mut scratch).is_some() {
-                branch(col, &bounds, &axes, ranges.clone(), &mut v, run_k, shelf);
-            }
-            if col.designs.is_empty() && col.miss.is_empty() {
-                diagnose(col, &axes, &ranges, &mut v, run_k, shelf);
+                branch(
+                    col,
+                    &bounds,
+                    &axes,
+                    ranges.clone(),
+                    None,
+                    &mut v,
+                    run_k,
+                    shelf,
+                );
             }
         }
         let mut k = outer.len();
         loop {
             if k == 0 {
+                // No design: the answer names the closest miss. The bounds
+                // skip most near misses, so a coarse grid of configurations
+                // (at the largest outer values) is always examined too.
+                if col.designs.is_empty() && !feedback {
+                    for (pos, opts) in &outer {
+                        v[*pos] = opts[opts.len() - 1];
+                    }
+                    let ranges: Vec<(usize, usize)> =
+                        axes.iter().map(|a| (0, a.options.len())).collect();
+                    diagnose(col, &axes, &ranges, &mut v, run_k, shelf);
+                }
                 return;
             }
             k -= 1;
@@ -818,6 +965,7 @@ fn branch(
     b: &Bounds<'_>,
     axes: &[Axis],
     ranges: Vec<(usize, usize)>,
+    rd_window: Option<(usize, usize)>,
     v: &mut Vec<f64>,
     run_k: Option<usize>,
     shelf: &Shelf,
@@ -831,18 +979,18 @@ fn branch(
             left[i] = (s, mid);
             let mut right = ranges;
             right[i] = (mid, e);
-            let mut kids: Vec<(f64, Vec<(usize, usize)>)> = Vec::with_capacity(2);
+            let mut kids = Vec::with_capacity(2);
             for r in [left, right] {
                 col.effort.corner_checks += 1;
                 let mut scratch = v.clone();
-                if let Some(m) = b.bound(axes, &r, &mut scratch) {
-                    kids.push((score(&col.p.spec, &m, col.prefer), r));
+                if let Some(bd) = b.bound(axes, &r, &mut scratch) {
+                    kids.push((score(&col.p.spec, &bd.metrics, col.prefer), r, bd.rd_window));
                 }
             }
             kids.sort_by(|x, y| y.0.total_cmp(&x.0));
-            for (sc, r) in kids {
+            for (sc, r, w) in kids {
                 if sc >= col.threshold() {
-                    branch(col, b, axes, r, v, run_k, shelf);
+                    branch(col, b, axes, r, w, v, run_k, shelf);
                 }
             }
         }
@@ -853,8 +1001,43 @@ fn branch(
                 }
             }
             col.effort.configurations += 1;
-            visit(col, v, run_k, false, shelf);
+            match (rd_window, run_k) {
+                (Some(w), Some(k)) => visit_window(col, v, k, w, shelf),
+                _ => visit(col, v, run_k, false, shelf),
+            }
         }
+    }
+}
+
+/// One bias configuration whose drain resistor the box bound already
+/// narrowed to shelf indices `[w.0, w.1)`: each value there is checked at
+/// nominal values, then screened and checked exactly.
+fn visit_window(
+    col: &mut Collector<'_>,
+    v: &mut [f64],
+    k: usize,
+    w: (usize, usize),
+    shelf: &Shelf,
+) {
+    let p = col.p;
+    let t = col.t;
+    for i in w.0..w.1 {
+        v[k] = shelf.values[i];
+        col.effort.corner_checks += 1;
+        let wc = corners_only(p, t, v);
+        if !all_pass(&margins(p, t, &wc)) {
+            if col.designs.is_empty() {
+                col.miss.note(p, t, v, &wc);
+            }
+            continue;
+        }
+        // Nominal-value metrics bound the worst-case ones.
+        let parts = v.iter().filter(|x| **x > 0.0).count() + t.capacitors(v).len();
+        if !col.may_enter(&Metrics::new(&p.spec, &wc, parts)) {
+            continue;
+        }
+        let tols: Vec<f64> = v.iter().map(|&x| shelf.tolerance_of(x)).collect();
+        col.exact(v, &tols);
     }
 }
 

@@ -26,11 +26,11 @@
 use super::exhaustive::choices;
 use super::{Collector, Shelf};
 use crate::analysis::{
-    all_pass, corners_only, gain_window, margins, quick, Problem, WorstCase, SLACK,
+    all_pass, corners_only, gain_window, margins, quick, worst_case_of, Problem, WorstCase, SLACK,
 };
 use crate::device::SquareLaw;
 use crate::rank::{score, Metrics, Prefer};
-use crate::topology::{Gate, Role, SignalContext, Topology};
+use crate::topology::{Gate, Rails, Role, SignalContext, Topology};
 use std::collections::HashMap;
 
 /// Divider pairs (R_top, R_bottom): all shelf pairs, or with `dominance`
@@ -69,6 +69,10 @@ struct Axis {
     positions: Vec<usize>,
     options: Vec<Vec<f64>>,
     gate_axis: bool,
+    /// A logarithmic measure of each option (of the gate voltage, or of
+    /// the resistance), ascending: the box is split along the axis whose
+    /// range spans the most of it, not the most options.
+    scale: Vec<f64>,
     /// For a divider that sets Zin: the parallel resistance of each option
     /// and its maxima over blocks of [`BLOCK`] options (range maxima for
     /// the Zin bound of a box).
@@ -219,7 +223,23 @@ struct Bound {
     rd_window: Option<(usize, usize)>,
 }
 
+/// One device corner at one supply extreme: every bound is taken over
+/// these, each of which the full check evaluates.
+struct Case {
+    law: SquareLaw,
+    rails: Rails,
+}
+
+impl Case {
+    /// Supply span, volts.
+    fn span(&self) -> f64 {
+        self.rails.vdd_v - self.rails.vss_v
+    }
+}
+
 struct Bounds<'a> {
+    /// Device corners × supply extremes.
+    cases: Vec<Case>,
     /// The shelf, ohms ascending (the drain resistor's choices).
     rd_values: &'a [f64],
     /// Ranking preference (the box bound is a score bound).
@@ -239,10 +259,10 @@ struct Bounds<'a> {
 
 /// Saturation current, VGS, VS and gm at a point with RD = 0 (the drain at
 /// its rail), for a folded law.
-fn bias_at(t: &dyn Topology, v: &[f64], p: &Problem, law: &SquareLaw) -> (f64, f64, f64, f64) {
+fn bias_at(t: &dyn Topology, v: &[f64], rails: &Rails, law: &SquareLaw) -> (f64, f64, f64, f64) {
     // The drain far above everything: the pure saturation root of the
     // folded law, which is the current at every saturated point.
-    let mut net = t.bias(v, &p.rails);
+    let mut net = t.bias(v, rails);
     net.rd_ohm = 0.0;
     if let Gate::FromDrain = net.gate {
         net.gate = Gate::Fixed(net.drain_rail_v);
@@ -281,16 +301,17 @@ impl Bounds<'_> {
         let low_vs = |_: &Axis, r: (usize, usize)| r.0;
         let span = s.supply.vdd_v - s.supply.vss_v;
         let vds_floor = s.vds_min_v;
-        let n = p.corners.len();
+        let cases = &self.cases;
+        let n = cases.len();
         let mut id_lo = vec![0.0; n];
         let mut g_lo = vec![0.0; n];
         let mut g_hi = vec![0.0; n];
         let mut vs_lo = vec![0.0; n];
         let mut vov_lo = vec![0.0; n];
         set(v, &low_id);
-        for (i, c) in p.corners.iter().enumerate() {
+        for (i, c) in cases.iter().enumerate() {
             let law = folded(&c.law, vds_floor);
-            let (id, vgs, _, gm) = bias_at(t, v, p, &law);
+            let (id, vgs, _, gm) = bias_at(t, v, &c.rails, &law);
             if s.device
                 .vgs_max_v
                 .is_some_and(|m| vgs > m + SLACK * m.abs().max(1.0))
@@ -305,9 +326,9 @@ impl Bounds<'_> {
             vov_lo[i] = (vgs - c.law.vto_v).max(0.0);
         }
         set(v, &high_id);
-        for (i, c) in p.corners.iter().enumerate() {
-            let law = folded(&c.law, span);
-            let (id, vgs, _, gm) = bias_at(t, v, p, &law);
+        for (i, c) in cases.iter().enumerate() {
+            let law = folded(&c.law, c.span());
+            let (id, vgs, _, gm) = bias_at(t, v, &c.rails, &law);
             if id <= 0.0 {
                 return None;
             }
@@ -324,23 +345,23 @@ impl Bounds<'_> {
         let mut g_hi_dn = vec![0.0; n];
         set(v, &low_id);
         shift(v, self.roles, self.tol, true);
-        for (i, c) in p.corners.iter().enumerate() {
-            g_lo_up[i] = bias_at(t, v, p, &folded(&c.law, vds_floor)).3;
+        for (i, c) in cases.iter().enumerate() {
+            g_lo_up[i] = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).3;
         }
         set(v, &high_id);
         shift(v, self.roles, self.tol, false);
-        for (i, c) in p.corners.iter().enumerate() {
-            g_hi_dn[i] = bias_at(t, v, p, &folded(&c.law, span)).3;
+        for (i, c) in cases.iter().enumerate() {
+            g_hi_dn[i] = bias_at(t, v, &c.rails, &folded(&c.law, c.span())).3;
         }
         set(v, &low_vs);
-        for (i, c) in p.corners.iter().enumerate() {
+        for (i, c) in cases.iter().enumerate() {
             let law = folded(&c.law, vds_floor);
-            vs_lo[i] = bias_at(t, v, p, &law).2;
+            vs_lo[i] = bias_at(t, v, &c.rails, &law).2;
         }
         // Headroom: VDS = VDD − VS − RD·ID must reach max(vds_min, vov).
         let mut rd_cap = f64::INFINITY;
         for i in 0..n {
-            let room = s.supply.vdd_v - vs_lo[i] - vds_floor.max(vov_lo[i]);
+            let room = cases[i].rails.vdd_v - vs_lo[i] - vds_floor.max(vov_lo[i]);
             if room < -SLACK * span {
                 return None;
             }
@@ -356,18 +377,17 @@ impl Bounds<'_> {
         let mut headroom_ub = f64::INFINITY;
         // The worst-case power is at least the power of any one corner, so
         // the largest of the per-corner current floors bounds it.
-        let mut id_floor: f64 = 0.0;
+        let mut power_lb: f64 = 0.0;
         for i in 0..n {
-            headroom_ub = headroom_ub.min(s.supply.vdd_v - vs_lo[i] - rd_floor * id_lo[i]);
-            id_floor = id_floor.max(id_lo[i]);
+            headroom_ub = headroom_ub.min(cases[i].rails.vdd_v - vs_lo[i] - rd_floor * id_lo[i]);
+            let net = t.bias(v, &cases[i].rails);
+            power_lb = power_lb.max(id_lo[i] * (net.drain_rail_v - net.source_rail_v));
         }
         let zin_ratio = axes
             .iter()
             .zip(ranges)
             .find_map(|(a, r)| a.zin_max(r.0, r.1))
             .map_or(f64::INFINITY, |z| z / s.zin_min_ohm);
-        let rails = t.bias(v, &p.rails);
-        let power_lb = id_floor * (rails.drain_rail_v - rails.source_rail_v);
         // Gain bounds: |gain| rises with gm and RD and is monotone in each
         // source resistor, so the extremes of the source axes bound it.
         let src_axes: Vec<usize> = (0..axes.len()).filter(|&i| !axes[i].gate_axis).collect();
@@ -452,7 +472,7 @@ impl Bounds<'_> {
             }
             let rd_need = a.exp();
             for i in 0..n {
-                headroom_ub = headroom_ub.min(s.supply.vdd_v - vs_lo[i] - rd_need * id_lo[i]);
+                headroom_ub = headroom_ub.min(cases[i].rails.vdd_v - vs_lo[i] - rd_need * id_lo[i]);
             }
         }
         if t.input_at_source() && self.lambda_free && zin_ub_min < s.zin_min_ohm * (1.0 - SLACK) {
@@ -515,7 +535,7 @@ impl Bounds<'_> {
                     m.gain_error = err.max(level_error);
                     m.gain_spread = spread;
                     m.headroom_v = (0..n)
-                        .map(|i| s.supply.vdd_v - vs_lo[i] - x * id_lo[i])
+                        .map(|i| cases[i].rails.vdd_v - vs_lo[i] - x * id_lo[i])
                         .fold(f64::INFINITY, f64::min)
                         - s.vds_min_v;
                     m.zin_ratio = zin_ratio;
@@ -829,6 +849,11 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             })
             .collect();
         pairs.sort_by(|x, y| x.0.total_cmp(&y.0).then(x.1.total_cmp(&y.1)));
+        let floor_v = 0.01 * p.spec.supply.vdd_v.abs().max(1e-3);
+        let scale: Vec<f64> = pairs
+            .iter()
+            .map(|x| (x.0.max(0.0) + floor_v).ln())
+            .collect();
         let options: Vec<Vec<f64>> = pairs.into_iter().map(|(_, r1, r2)| vec![r1, r2]).collect();
         let zin = zin_from_divider.then(|| {
             let z: Vec<f64> = options
@@ -846,16 +871,17 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             options,
             zin,
             gate_axis: true,
+            scale,
         });
     }
     for (i, r) in roles.iter().enumerate() {
         if *r == Role::Source {
+            let opts = choices(t, i, p, shelf);
+            let r0 = shelf.values[0];
             axes.push(Axis {
                 positions: vec![i],
-                options: choices(t, i, p, shelf)
-                    .into_iter()
-                    .map(|x| vec![x])
-                    .collect(),
+                scale: opts.iter().map(|x| (x + r0).ln()).collect(),
+                options: opts.into_iter().map(|x| vec![x]).collect(),
                 gate_axis: false,
                 zin: None,
             });
@@ -890,6 +916,11 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
     let parts_floor =
         roles.len() - zero_able + t.capacitors(&vec![1.0; roles.len()]).len() - zero_able;
     let bounds = Bounds {
+        cases: p
+            .rail_extremes()
+            .into_iter()
+            .flat_map(|rails| p.corners.iter().map(move |c| Case { law: c.law, rails }))
+            .collect(),
         rd_values: &shelf.values,
         prefer: col.prefer,
         parts_floor,
@@ -921,16 +952,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             let mut scratch = v.clone();
             col.effort.corner_checks += 1;
             if axes.is_empty() || bounds.bound(&axes, &ranges, &mut scratch).is_some() {
-                branch(
-                    col,
-                    &bounds,
-                    &axes,
-                    ranges.clone(),
-                    None,
-                    &mut v,
-                    run_k,
-                    shelf,
-                );
+                branch(col, &bounds, &axes, ranges.clone(), None, &mut v, shelf);
             }
         }
         let mut k = outer.len();
@@ -967,10 +989,19 @@ fn branch(
     ranges: Vec<(usize, usize)>,
     rd_window: Option<(usize, usize)>,
     v: &mut Vec<f64>,
-    run_k: Option<usize>,
     shelf: &Shelf,
 ) {
-    let widest = (0..ranges.len()).max_by_key(|&i| ranges[i].1 - ranges[i].0);
+    // The box holds every part but the drain resistor (drain feedback,
+    // which has no box, never branches).
+    let run_k = b.rd;
+    let widest = (0..ranges.len())
+        .filter(|&i| ranges[i].1 - ranges[i].0 > 1)
+        .max_by(|&i, &j| {
+            let w = |k: usize| axes[k].scale[ranges[k].1 - 1] - axes[k].scale[ranges[k].0];
+            w(i).total_cmp(&w(j))
+                .then((ranges[i].1 - ranges[i].0).cmp(&(ranges[j].1 - ranges[j].0)))
+                .then(j.cmp(&i))
+        });
     match widest {
         Some(i) if ranges[i].1 - ranges[i].0 > 1 => {
             let (s, e) = ranges[i];
@@ -990,7 +1021,7 @@ fn branch(
             kids.sort_by(|x, y| y.0.total_cmp(&x.0));
             for (sc, r, w) in kids {
                 if sc >= col.threshold() {
-                    branch(col, b, axes, r, w, v, run_k, shelf);
+                    branch(col, b, axes, r, w, v, shelf);
                 }
             }
         }
@@ -1024,7 +1055,8 @@ fn visit_window(
     for i in w.0..w.1 {
         v[k] = shelf.values[i];
         col.effort.corner_checks += 1;
-        let wc = corners_only(p, t, v);
+        // Nominal resistor values at every corner and supply extreme.
+        let wc = worst_case_of(p, t, std::slice::from_ref(&v.to_vec()));
         if !all_pass(&margins(p, t, &wc)) {
             if col.designs.is_empty() {
                 col.miss.note(p, t, v, &wc);

@@ -31,22 +31,24 @@ use crate::analysis::{
 use crate::device::SquareLaw;
 use crate::rank::{score, Metrics, Prefer};
 use crate::topology::{Gate, Rails, Role, SignalContext, Topology};
-use std::collections::HashMap;
+use rustc_hash::FxHashMap;
 
 /// Divider pairs (R_top, R_bottom): all shelf pairs, or with `dominance`
 /// only the largest placement of each ratio. With `zin_floor` > 0 pairs
 /// whose parallel resistance is below it are dropped.
 fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f64)> {
     let vals = &shelf.values;
+    // The ratio's key: ln(R2/R1) to 1e-9, from a table of logarithms.
+    let logs: Vec<f64> = vals.iter().map(|r| r.ln()).collect();
     let mut out: Vec<(f64, f64)> = Vec::new();
-    let mut best: HashMap<i64, (f64, f64)> = HashMap::new();
-    for &r1 in vals {
-        for &r2 in vals {
+    let mut best: FxHashMap<i64, (f64, f64)> = FxHashMap::default();
+    for (&r1, &l1) in vals.iter().zip(&logs) {
+        for (&r2, &l2) in vals.iter().zip(&logs) {
             if zin_floor > 0.0 && r1 * r2 / (r1 + r2) < zin_floor * (1.0 - SLACK) {
                 continue;
             }
             if dominance {
-                let key = ((r2 / r1).ln() * 1e9).round() as i64;
+                let key = ((l2 - l1) * 1e9).round() as i64;
                 let e = best.entry(key).or_insert((r1, r2));
                 if r1 > e.0 {
                     *e = (r1, r2);
@@ -848,7 +850,8 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
                 (vg, r1, r2)
             })
             .collect();
-        pairs.sort_by(|x, y| x.0.total_cmp(&y.0).then(x.1.total_cmp(&y.1)));
+        // (VG, R1) orders the pairs totally: R1 and VG fix R2.
+        pairs.sort_unstable_by(|x, y| x.0.total_cmp(&y.0).then(x.1.total_cmp(&y.1)));
         let floor_v = 0.01 * p.spec.supply.vdd_v.abs().max(1e-3);
         let scale: Vec<f64> = pairs
             .iter()
@@ -951,8 +954,21 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         } else {
             let mut scratch = v.clone();
             col.effort.corner_checks += 1;
-            if axes.is_empty() || bounds.bound(&axes, &ranges, &mut scratch).is_some() {
-                branch(col, &bounds, &axes, ranges.clone(), None, &mut v, shelf);
+            let root = if axes.is_empty() {
+                Some((f64::INFINITY, None))
+            } else {
+                bounds
+                    .bound(&axes, &ranges, &mut scratch)
+                    .map(|bd| (score(&p.spec, &bd.metrics, col.prefer), bd.rd_window))
+            };
+            if let Some((score, rd_window)) = root {
+                let root = Node {
+                    score,
+                    seq: 0,
+                    ranges: ranges.clone(),
+                    rd_window,
+                };
+                branch(col, &bounds, &axes, root, &mut v, shelf);
             }
         }
         let mut k = outer.len();
@@ -981,60 +997,98 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
     }
 }
 
-/// Branch and bound over the box, better bound first.
+/// A box waiting in the branch-and-bound queue.
+struct Node {
+    /// Score of the box's optimistic metrics.
+    score: f64,
+    /// Order of creation (ties go to the older box: deterministic).
+    seq: u64,
+    /// Index range `[start, end)` on each axis.
+    ranges: Vec<(usize, usize)>,
+    /// The drain resistor's shelf window, when the bound scanned it.
+    rd_window: Option<(usize, usize)>,
+}
+
+impl PartialEq for Node {
+    fn eq(&self, o: &Self) -> bool {
+        self.cmp(o) == std::cmp::Ordering::Equal
+    }
+}
+impl Eq for Node {}
+impl PartialOrd for Node {
+    fn partial_cmp(&self, o: &Self) -> Option<std::cmp::Ordering> {
+        Some(self.cmp(o))
+    }
+}
+impl Ord for Node {
+    fn cmp(&self, o: &Self) -> std::cmp::Ordering {
+        self.score.total_cmp(&o.score).then(o.seq.cmp(&self.seq))
+    }
+}
+
+/// Branch and bound over the box, best bound first: the box with the
+/// highest score bound is split next, so good designs come early and raise
+/// the entry threshold, and the search ends when the best waiting bound is
+/// below it (no box left can hold a design that would be kept).
 fn branch(
     col: &mut Collector<'_>,
     b: &Bounds<'_>,
     axes: &[Axis],
-    ranges: Vec<(usize, usize)>,
-    rd_window: Option<(usize, usize)>,
-    v: &mut Vec<f64>,
+    root: Node,
+    v: &mut [f64],
     shelf: &Shelf,
 ) {
     // The box holds every part but the drain resistor (drain feedback,
     // which has no box, never branches).
     let run_k = b.rd;
-    let widest = (0..ranges.len())
-        .filter(|&i| ranges[i].1 - ranges[i].0 > 1)
-        .max_by(|&i, &j| {
-            let w = |k: usize| axes[k].scale[ranges[k].1 - 1] - axes[k].scale[ranges[k].0];
-            w(i).total_cmp(&w(j))
-                .then((ranges[i].1 - ranges[i].0).cmp(&(ranges[j].1 - ranges[j].0)))
-                .then(j.cmp(&i))
-        });
-    match widest {
-        Some(i) if ranges[i].1 - ranges[i].0 > 1 => {
-            let (s, e) = ranges[i];
-            let mid = s + (e - s) / 2;
-            let mut left = ranges.clone();
-            left[i] = (s, mid);
-            let mut right = ranges;
-            right[i] = (mid, e);
-            let mut kids = Vec::with_capacity(2);
-            for r in [left, right] {
-                col.effort.corner_checks += 1;
-                let mut scratch = v.clone();
-                if let Some(bd) = b.bound(axes, &r, &mut scratch) {
-                    kids.push((score(&col.p.spec, &bd.metrics, col.prefer), r, bd.rd_window));
-                }
-            }
-            kids.sort_by(|x, y| y.0.total_cmp(&x.0));
-            for (sc, r, w) in kids {
-                if sc >= col.threshold() {
-                    branch(col, b, axes, r, w, v, shelf);
-                }
-            }
+    let mut seq = 1u64;
+    let mut queue = std::collections::BinaryHeap::new();
+    queue.push(root);
+    let mut scratch = v.to_vec();
+    while let Some(node) = queue.pop() {
+        if node.score < col.threshold() {
+            break;
         }
-        _ => {
+        let ranges = node.ranges;
+        let widest = (0..ranges.len())
+            .filter(|&i| ranges[i].1 - ranges[i].0 > 1)
+            .max_by(|&i, &j| {
+                let w = |k: usize| axes[k].scale[ranges[k].1 - 1] - axes[k].scale[ranges[k].0];
+                w(i).total_cmp(&w(j))
+                    .then((ranges[i].1 - ranges[i].0).cmp(&(ranges[j].1 - ranges[j].0)))
+                    .then(j.cmp(&i))
+            });
+        let Some(i) = widest else {
             for (a, r) in axes.iter().zip(&ranges) {
                 for (k, &pos) in a.positions.iter().enumerate() {
                     v[pos] = a.options[r.0][k];
                 }
             }
             col.effort.configurations += 1;
-            match (rd_window, run_k) {
+            match (node.rd_window, run_k) {
                 (Some(w), Some(k)) => visit_window(col, v, k, w, shelf),
                 _ => visit(col, v, run_k, false, shelf),
+            }
+            continue;
+        };
+        let (s, e) = ranges[i];
+        let mid = s + (e - s) / 2;
+        for half in [(s, mid), (mid, e)] {
+            let mut r = ranges.clone();
+            r[i] = half;
+            col.effort.corner_checks += 1;
+            scratch.copy_from_slice(v);
+            if let Some(bd) = b.bound(axes, &r, &mut scratch) {
+                let score = score(&col.p.spec, &bd.metrics, col.prefer);
+                if score >= col.threshold() {
+                    queue.push(Node {
+                        score,
+                        seq,
+                        ranges: r,
+                        rd_window: bd.rd_window,
+                    });
+                    seq += 1;
+                }
             }
         }
     }

@@ -223,6 +223,9 @@ struct Bound {
     /// Shelf indices `[first, last)` of the drain resistors that can work
     /// anywhere in the box, when the drain resistor was scanned.
     rd_window: Option<(usize, usize)>,
+    /// For a single configuration: the score bound of each drain resistor
+    /// in the window (empty otherwise).
+    rd_scores: Vec<f64>,
 }
 
 /// One device corner at one supply extreme: every bound is taken over
@@ -421,25 +424,10 @@ impl Bounds<'_> {
         let gain_at =
             |v: &mut [f64], gm: f64, rd: f64, combo: usize| gain_at_m(v, gm, rd, combo, 1.0);
         let rd_best = rd_cap.min(self.r_max);
-        let mut min_ub = f64::INFINITY;
-        let mut zin_ub_min = f64::INFINITY;
-        for i in 0..n {
-            let mut ub: f64 = 0.0;
-            let mut zin_ub: f64 = 0.0;
-            for cmb in 0..combos {
-                ub = ub.max(gain_at(v, g_hi[i], rd_best, cmb).0);
-                zin_ub = zin_ub.max(gain_at(v, g_lo[i], rd_best, cmb).1);
-            }
-            min_ub = min_ub.min(ub);
-            zin_ub_min = zin_ub_min.min(zin_ub);
-        }
-        if min_ub < lo * (1.0 - SLACK) {
-            return None;
-        }
         // With λ = 0 (gds = 0) and no source resistance inside the gain,
         // |av| is proportional to RD∥RL at a fixed gm (common source and
         // common gate alike): then the drain resistor can be scanned over
-        // the shelf below (`rd_scan`). Checked here rather than assumed.
+        // the shelf below (`RdScan`). Checked here rather than assumed.
         let rl = s.rl_ohm;
         let spread_free =
             self.lambda_free && (s.source_resistance_ohm == 0.0 || !t.input_at_source());
@@ -449,6 +437,32 @@ impl Bounds<'_> {
             let b = gain_at_m(v, g_hi_dn[0], 2.0 * r0, 0, 1.0).0;
             a > 0.0 && ((b / a) / (par2(2.0 * r0, rl) / par2(r0, rl)) - 1.0).abs() < 1e-9
         };
+        // The level at the largest RD (the scan's window implies it) and
+        // the Zin of a common-gate input.
+        let need_zin = t.input_at_source() && self.lambda_free;
+        let mut min_ub = f64::INFINITY;
+        let mut zin_ub_min = f64::INFINITY;
+        if !scan || need_zin {
+            for i in 0..n {
+                let mut ub: f64 = 0.0;
+                let mut zin_ub: f64 = 0.0;
+                for cmb in 0..combos {
+                    if !scan {
+                        ub = ub.max(gain_at(v, g_hi[i], rd_best, cmb).0);
+                    }
+                    if need_zin {
+                        zin_ub = zin_ub.max(gain_at(v, g_lo[i], rd_best, cmb).1);
+                    }
+                }
+                if !scan {
+                    min_ub = min_ub.min(ub);
+                }
+                zin_ub_min = zin_ub_min.min(zin_ub);
+            }
+        }
+        if !scan && min_ub < lo * (1.0 - SLACK) {
+            return None;
+        }
         // The smallest RD that can reach |gain| = lo at every corner (gain
         // rises with RD): the headroom cannot exceed what that RD leaves.
         if self.rd.is_some() && !scan {
@@ -477,7 +491,7 @@ impl Bounds<'_> {
                 headroom_ub = headroom_ub.min(cases[i].rails.vdd_v - vs_lo[i] - rd_need * id_lo[i]);
             }
         }
-        if t.input_at_source() && self.lambda_free && zin_ub_min < s.zin_min_ohm * (1.0 - SLACK) {
+        if need_zin && zin_ub_min < s.zin_min_ohm * (1.0 - SLACK) {
             return None;
         }
         // Spread (λ = 0): the ratio of |gain| between corners does not depend
@@ -531,6 +545,10 @@ impl Bounds<'_> {
                 };
                 let mut best: Option<(f64, Metrics)> = None;
                 let window = scan.window(self.rd_values, lo, hi);
+                // A single configuration keeps the bound of each RD, so
+                // the visit can skip those that cannot be kept.
+                let single = ranges.iter().all(|r| r.1 - r.0 == 1);
+                let mut rd_scores = Vec::new();
                 for &x in &self.rd_values[window.0..window.1] {
                     let (err, spread) = scan.gain_terms(x, g_target);
                     let mut m = optimistic(s, 1.0, 0.0, power_lb, 1.0, self.parts_floor);
@@ -542,6 +560,9 @@ impl Bounds<'_> {
                         - s.vds_min_v;
                     m.zin_ratio = zin_ratio;
                     let sc = score(s, &m, self.prefer);
+                    if single {
+                        rd_scores.push(sc);
+                    }
                     if best.as_ref().is_none_or(|(b, _)| sc > *b) {
                         best = Some((sc, m));
                     }
@@ -551,6 +572,7 @@ impl Bounds<'_> {
                         at_rd = Some(Bound {
                             metrics,
                             rd_window: Some(window),
+                            rd_scores,
                         })
                     }
                     None => return None,
@@ -572,6 +594,7 @@ impl Bounds<'_> {
         Some(Bound {
             metrics: m,
             rd_window: None,
+            rd_scores: Vec::new(),
         })
     }
 }
@@ -955,18 +978,23 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             let mut scratch = v.clone();
             col.effort.corner_checks += 1;
             let root = if axes.is_empty() {
-                Some((f64::INFINITY, None))
+                Some((f64::INFINITY, None, Vec::new()))
             } else {
-                bounds
-                    .bound(&axes, &ranges, &mut scratch)
-                    .map(|bd| (score(&p.spec, &bd.metrics, col.prefer), bd.rd_window))
+                bounds.bound(&axes, &ranges, &mut scratch).map(|bd| {
+                    (
+                        score(&p.spec, &bd.metrics, col.prefer),
+                        bd.rd_window,
+                        bd.rd_scores,
+                    )
+                })
             };
-            if let Some((score, rd_window)) = root {
+            if let Some((score, rd_window, rd_scores)) = root {
                 let root = Node {
                     score,
                     seq: 0,
                     ranges: ranges.clone(),
                     rd_window,
+                    rd_scores,
                 };
                 branch(col, &bounds, &axes, root, &mut v, shelf);
             }
@@ -1007,6 +1035,9 @@ struct Node {
     ranges: Vec<(usize, usize)>,
     /// The drain resistor's shelf window, when the bound scanned it.
     rd_window: Option<(usize, usize)>,
+    /// Score bound of each drain resistor in the window (single
+    /// configurations only).
+    rd_scores: Vec<f64>,
 }
 
 impl PartialEq for Node {
@@ -1066,7 +1097,7 @@ fn branch(
             }
             col.effort.configurations += 1;
             match (node.rd_window, run_k) {
-                (Some(w), Some(k)) => visit_window(col, v, k, w, shelf),
+                (Some(w), Some(k)) => visit_window(col, v, k, w, &node.rd_scores, shelf),
                 _ => visit(col, v, run_k, false, shelf),
             }
             continue;
@@ -1086,6 +1117,7 @@ fn branch(
                         seq,
                         ranges: r,
                         rd_window: bd.rd_window,
+                        rd_scores: bd.rd_scores,
                     });
                     seq += 1;
                 }
@@ -1095,18 +1127,23 @@ fn branch(
 }
 
 /// One bias configuration whose drain resistor the box bound already
-/// narrowed to shelf indices `[w.0, w.1)`: each value there is checked at
+/// narrowed to shelf indices `[w.0, w.1)`: each value there whose own
+/// score bound (`scores`, when given) can still enter is checked at
 /// nominal values, then screened and checked exactly.
 fn visit_window(
     col: &mut Collector<'_>,
     v: &mut [f64],
     k: usize,
     w: (usize, usize),
+    scores: &[f64],
     shelf: &Shelf,
 ) {
     let p = col.p;
     let t = col.t;
     for i in w.0..w.1 {
+        if scores.get(i - w.0).is_some_and(|&b| b < col.threshold()) {
+            continue;
+        }
         v[k] = shelf.values[i];
         col.effort.corner_checks += 1;
         // Nominal resistor values at every corner and supply extreme.

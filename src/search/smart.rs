@@ -395,7 +395,12 @@ impl Bounds<'_> {
             .map_or(f64::INFINITY, |z| z / s.zin_min_ohm);
         // Gain bounds: |gain| rises with gm and RD and is monotone in each
         // source resistor, so the extremes of the source axes bound it.
-        let src_axes: Vec<usize> = (0..axes.len()).filter(|&i| !axes[i].gate_axis).collect();
+        // (A bypassed source resistor never enters the gain: no extremes.)
+        let src_axes: Vec<usize> = (0..axes.len())
+            .filter(|&i| {
+                !axes[i].gate_axis && axes[i].positions.iter().any(|k| !t.bypassed().contains(k))
+            })
+            .collect();
         let combos = 1usize << src_axes.len();
         let gain_at_m = |v: &mut [f64], gm: f64, rd: f64, combo: usize, mult: f64| {
             for (bit, &ai) in src_axes.iter().enumerate() {

@@ -39,6 +39,9 @@ impl Topology for Divider {
             rd_ohm: v[3],
         }
     }
+    fn bypassed(&self) -> &'static [usize] {
+        &[2]
+    }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_bypassed(v[3], par(&[v[0], v[1]]), c)
     }

@@ -44,6 +44,9 @@ impl Topology for DividerSplit {
             rd_ohm: v[4],
         }
     }
+    fn bypassed(&self) -> &'static [usize] {
+        &[3]
+    }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_degenerated(v[4], v[2], par(&[v[0], v[1]]), c)
     }

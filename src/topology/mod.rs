@@ -328,6 +328,11 @@ pub trait Topology: Sync {
     fn input_at_source(&self) -> bool {
         false
     }
+    /// Indices of the resistors a mid-band bypass capacitor shorts: they
+    /// set the bias only and never enter [`Topology::small_signal`].
+    fn bypassed(&self) -> &'static [usize] {
+        &[]
+    }
     /// Whether the resistor at `index` may be 0 Ω (a wire) for this family.
     fn may_be_zero(&self, _index: usize, _family: Family) -> bool {
         false
@@ -359,6 +364,31 @@ pub use common::{CapRole, NetlistInput, SignalContext};
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    // Common practice (a bypass capacitor is a short at mid-band): the
+    // small-signal results do not move when a bypassed resistor does.
+    #[test]
+    fn bypassed_resistors_never_enter_the_small_signal() {
+        for t in TOPOLOGIES {
+            for &i in t.bypassed() {
+                for (gm, rsig) in [(1e-3, 0.0), (7e-3, 600.0), (0.2, 50e3)] {
+                    let ctx = common::SignalContext {
+                        gm_s: gm,
+                        gds_s: 1e-5,
+                        rl_ohm: 10e3,
+                        rsig_ohm: rsig,
+                    };
+                    let mut v: Vec<f64> = (0..t.parts().len())
+                        .map(|k| 1e3 * (1.7 + k as f64))
+                        .collect();
+                    let a = t.small_signal(&v, &ctx);
+                    v[i] *= 37.0;
+                    let b = t.small_signal(&v, &ctx);
+                    assert_eq!(a, b, "{} part {}", t.id(), t.parts()[i]);
+                }
+            }
+        }
+    }
 
     fn law(vto: f64, k: f64, lambda: f64) -> SquareLaw {
         SquareLaw {

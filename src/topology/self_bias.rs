@@ -34,6 +34,9 @@ impl Topology for SelfBias {
             rd_ohm: v[2],
         }
     }
+    fn bypassed(&self) -> &'static [usize] {
+        &[1]
+    }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_bypassed(v[2], v[0], c)
     }

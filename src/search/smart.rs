@@ -571,6 +571,13 @@ impl Bounds<'_> {
                     if best.as_ref().is_none_or(|(b, _)| sc > *b) {
                         best = Some((sc, m));
                     }
+                    // Past the bottom of the error's V (the strong side
+                    // binds), a larger RD only worsens error, spread and
+                    // headroom: no later value scores higher.
+                    let (strong, weak) = scan.gains(x);
+                    if !single && strong - g_target >= g_target - weak {
+                        break;
+                    }
                 }
                 match best {
                     Some((_, metrics)) => {

@@ -6,20 +6,24 @@
 //!    span an index box. Along every axis the drain current moves one known
 //!    way (up with VG, down with RS) and so do VGS, VS and gm (proved by
 //!    implicit differentiation of the bias equation; see DEVELOPERS.md), so
-//!    two solves at the box's extreme points bound every corner's current,
-//!    gm and source voltage over the whole box. A box whose bounds already
-//!    break a requirement is dropped; others are split until single values.
+//!    solves at the box's extreme points bound every corner's current, gm
+//!    and source voltage over the whole box, at every device corner and
+//!    supply extreme. With λ = 0 the bound also scans the drain resistor
+//!    over the shelf (|gain| is proportional to RD∥RL there), so the gain
+//!    error, spread and headroom are bounded together for each standard RD.
+//!    A box whose bounds break a requirement, or whose score bound is below
+//!    the entry threshold, is dropped; the others wait in a queue, best
+//!    bound first, and are split until single configurations.
 //! 2. Gate resistors that only set Zin are chosen last by rule; divider
 //!    pairs with the same ratio are reduced to the largest placement (same
 //!    bias, more Zin, less current) unless a source resistance makes Zin
 //!    enter the gain.
-//! 3. A single configuration is checked at nominal resistor values over the
-//!    device corners with the best RD the headroom allows (a necessary
-//!    condition, since |gain| rises and VDS falls with RD); the feasible RD
-//!    (or RF) values then form one contiguous run of the sorted shelf: two
-//!    binary searches find it.
-//! 4. Every value in the run is checked exactly over all corners and
-//!    tolerance extremes; only those checks decide what is reported.
+//! 3. A single configuration takes the RD window of its bound (or, with
+//!    λ > 0, the run of RD values that passes the nominal checks, found by
+//!    two binary searches inside the saturated range).
+//! 4. Each RD there is checked at nominal resistor values, screened at two
+//!    tolerance extremes, and checked exactly over all corners, tolerance
+//!    and supply extremes; only that full check decides what is reported.
 //!
 //! The exhaustive search is the proof: the property test compares them.
 

@@ -392,6 +392,12 @@ impl Bounds<'_> {
             let net = t.bias(v, &cases[i].rails);
             power_lb = power_lb.max(id_lo[i] * (net.drain_rail_v - net.source_rail_v));
         }
+        if s.limits
+            .power_max_w
+            .is_some_and(|m| power_lb > m * (1.0 + SLACK))
+        {
+            return None;
+        }
         let zin_ratio = axes
             .iter()
             .zip(ranges)
@@ -428,7 +434,7 @@ impl Bounds<'_> {
                 rsig_ohm: s.source_resistance_ohm,
             };
             let ss = t.small_signal(v, &ctx);
-            (ss.av.abs(), ss.zin_ohm)
+            (ss.av.abs(), ss.zin_ohm, ss.zout_ohm)
         };
         let gain_at =
             |v: &mut [f64], gm: f64, rd: f64, combo: usize| gain_at_m(v, gm, rd, combo, 1.0);
@@ -440,10 +446,18 @@ impl Bounds<'_> {
         let rl = s.rl_ohm;
         let spread_free =
             self.lambda_free && (s.source_resistance_ohm == 0.0 || !t.input_at_source());
+        // Where Zout is RD itself (gds = 0), zout_max caps RD at its
+        // upper tolerance extreme.
+        let mut zout_cap = f64::INFINITY;
         let scan = spread_free && self.rd.is_some() && g_hi_dn[0] > 0.0 && {
             let r0 = self.r_min;
-            let a = gain_at_m(v, g_hi_dn[0], r0, 0, 1.0).0;
+            let (a, _, z) = gain_at_m(v, g_hi_dn[0], r0, 0, 1.0);
             let b = gain_at_m(v, g_hi_dn[0], 2.0 * r0, 0, 1.0).0;
+            if let Some(zm) = s.limits.zout_max_ohm {
+                if ((z / r0) - 1.0).abs() < 1e-12 {
+                    zout_cap = zm * (1.0 + SLACK) / (1.0 + self.tol);
+                }
+            }
             a > 0.0 && ((b / a) / (par2(2.0 * r0, rl) / par2(r0, rl)) - 1.0).abs() < 1e-9
         };
         // The level at the largest RD (the scan's window implies it) and
@@ -550,7 +564,7 @@ impl Bounds<'_> {
                     weak: min_ub2 / unit,
                     tol: self.tol,
                     rl,
-                    rd_cap,
+                    rd_cap: rd_cap.min(zout_cap),
                 };
                 let mut best: Option<(f64, Metrics)> = None;
                 let window = scan.window(self.rd_values, lo, hi);

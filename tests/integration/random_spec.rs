@@ -48,6 +48,8 @@ pub(crate) fn case() -> impl Strategy<Value = Case> {
         (prop_oneof![0.3f64..0.95, 1.5f64..12.0], 0.15f64..0.45),
         (2.0f64..4.0, 0.0f64..0.9, 0.0f64..2.5),
         (0usize..3, prop_oneof![Just(0.0), Just(0.02), Just(0.1)]),
+        // Supply tolerance, source resistance, one limit, λ.
+        (0usize..3, 0usize..3, 0usize..4, 0usize..3),
     )
         .prop_map(
             |(
@@ -58,6 +60,7 @@ pub(crate) fn case() -> impl Strategy<Value = Case> {
                 (gain, tol),
                 (decade, zin_frac, vds_min),
                 (polar, rtol),
+                (stol, rsig, limit, lambda),
             )| {
                 let family = Family::ALL[fam];
                 // Device strength scaled to the decade so currents are sensible.
@@ -66,6 +69,28 @@ pub(crate) fn case() -> impl Strategy<Value = Case> {
                     Family::NEnhancementMosfet => bm * 1e-3 * (1e3 / r_lo),
                     _ => bm * 1e-3 * (1e3 / r_lo).sqrt(),
                 };
+                let span = vdd - vss;
+                // One optional limit, scaled to the device like the rest:
+                // b is IDSS, or K·(1 V)² for the enhancement family.
+                let limits = match limit {
+                    1 => Limits {
+                        id_max_a: Some(0.5 * b),
+                        ..Limits::default()
+                    },
+                    2 => Limits {
+                        power_max_w: Some(0.5 * b * span),
+                        ..Limits::default()
+                    },
+                    3 => Limits {
+                        zout_max_ohm: Some(3.0 * r_lo),
+                        ..Limits::default()
+                    },
+                    _ => Limits::default(),
+                };
+                let mut device = device(family, a, b, sa, sb);
+                if lambda == 2 {
+                    device.lambda = ParamRange::exact(0.01);
+                }
                 let spec = ValidSpec {
                     name: "random".to_string(),
                     target: Target {
@@ -77,15 +102,15 @@ pub(crate) fn case() -> impl Strategy<Value = Case> {
                     supply: Supply {
                         vdd_v: vdd,
                         vss_v: vss,
-                        tolerance: 0.0,
+                        tolerance: [0.0, 0.05, 0.1][stol],
                     },
                     rl_ohm: r_lo * 5.0,
                     zin_min_ohm: r_lo * 10f64.powf(zin_frac),
-                    source_resistance_ohm: 0.0,
+                    source_resistance_ohm: [0.0, 0.0, 0.5 * r_lo][rsig],
                     vds_min_v: vds_min,
-                    limits: Limits::default(),
+                    limits,
                     f_low_hz: None,
-                    device: device(family, a, b, sa, sb),
+                    device,
                     parts: Parts {
                         catalog: CatalogChoice::Series(ESeries::E12),
                         tolerance: Some(rtol),

@@ -44,7 +44,14 @@ fn bench(c: &mut Criterion) {
             })
         });
     }
-    for name in ["piezo-buffer", "cable-driver", "high-voltage-dmos"] {
+    for name in [
+        "piezo-buffer",
+        "cable-driver",
+        "battery-stage",
+        "line-gain",
+        "dual-rail",
+        "high-voltage-dmos",
+    ] {
         let spec = load(name);
         let sh = shelf(&spec, Some(ESeries::E96), Some((1.0, 10e6)));
         g.bench_function(format!("{name}/E96-1R-10M"), |b| {

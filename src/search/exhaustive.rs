@@ -49,7 +49,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         col.effort.corner_checks += 1;
         let wc = corners_only(col.p, t, &values);
         if all_pass(&margins(col.p, t, &wc)) {
-            let tols: Vec<f64> = values.iter().map(|&v| shelf.tolerance_of(v)).collect();
+            let tols = shelf.tolerances_for(&values);
             col.exact(&values, &tols);
         } else {
             col.miss.note(col.p, t, &values, &wc);

@@ -54,6 +54,11 @@ impl Shelf {
         }
     }
 
+    /// Tolerance of each of `values` (see [`Shelf::tolerance_of`]).
+    pub fn tolerances_for(&self, values: &[f64]) -> Vec<f64> {
+        values.iter().map(|&x| self.tolerance_of(x)).collect()
+    }
+
     /// Tolerance of a value on the shelf (0 for a 0 Ω link).
     pub fn tolerance_of(&self, ohms: f64) -> f64 {
         if ohms == 0.0 {
@@ -318,7 +323,7 @@ impl Collector<'_> {
 
     /// Exact check of one candidate; keeps it when feasible.
     pub(crate) fn exact(&mut self, values: &[f64], tolerances: &[f64]) -> bool {
-        let parts = values.iter().filter(|v| **v > 0.0).count() + self.t.capacitors(values).len();
+        let parts = self.t.part_count(values);
         // The screen: two tolerance extremes. Failing there is failing;
         // metrics there bound the full ones (analysis::lead_extremes).
         self.effort.screen_checks += 1;

@@ -719,7 +719,7 @@ fn rd_level_a(col: &mut Collector<'_>, v: &mut [f64], rd: usize, shelf: &Shelf) 
             return None;
         }
     }
-    let parts = v.iter().filter(|x| **x > 0.0).count() + t.capacitors(v).len();
+    let parts = t.part_count(v);
     let _ = g;
     // Headroom bound: the smallest RD that reaches |gain| = lo at every
     // corner (λ = 0: the operating point does not move with RD).
@@ -1185,11 +1185,11 @@ fn visit_window(
             continue;
         }
         // Nominal-value metrics bound the worst-case ones.
-        let parts = v.iter().filter(|x| **x > 0.0).count() + t.capacitors(v).len();
+        let parts = t.part_count(v);
         if !col.may_enter(&Metrics::new(&p.spec, &wc, parts)) {
             continue;
         }
-        let tols: Vec<f64> = v.iter().map(|&x| shelf.tolerance_of(x)).collect();
+        let tols = shelf.tolerances_for(v);
         col.exact(v, &tols);
     }
 }
@@ -1261,7 +1261,7 @@ fn visit(
                 return;
             }
             // Nominal-value metrics bound the worst-case ones.
-            let parts = v.iter().filter(|x| **x > 0.0).count() + t.capacitors(v).len();
+            let parts = t.part_count(v);
             if !col.may_enter(&Metrics::new(&p.spec, &wc, parts)) {
                 return;
             }
@@ -1290,11 +1290,6 @@ fn visit(
             Some(run_range(col, v, k, feedback, shelf))
         }
     };
-    let tol = |v: &[f64]| {
-        v.iter()
-            .map(|&x| shelf.tolerance_of(x))
-            .collect::<Vec<f64>>()
-    };
     match (range, run_k) {
         (Some(r), Some(k)) => {
             for i in r {
@@ -1302,16 +1297,16 @@ fn visit(
                 // Nominal-value metrics bound the worst-case ones.
                 col.effort.corner_checks += 1;
                 let wc = corners_only(p, t, v);
-                let parts = v.iter().filter(|x| **x > 0.0).count() + t.capacitors(v).len();
+                let parts = t.part_count(v);
                 if !col.may_enter(&Metrics::new(&p.spec, &wc, parts)) {
                     continue;
                 }
-                let tols = tol(v);
+                let tols = shelf.tolerances_for(v);
                 col.exact(v, &tols);
             }
         }
         _ => {
-            let tols = tol(v);
+            let tols = shelf.tolerances_for(v);
             col.exact(v, &tols);
         }
     }

@@ -349,6 +349,11 @@ pub trait Topology: Sync {
     /// The capacitors it uses, as (designator, role) pairs.
     fn capacitors(&self, values: &[f64]) -> Vec<(&'static str, common::CapRole)>;
 
+    /// Parts on the board with these values: the resistors that are not
+    /// wires (0 Ω) plus the capacitors.
+    fn part_count(&self, values: &[f64]) -> usize {
+        values.iter().filter(|v| **v > 0.0).count() + self.capacitors(values).len()
+    }
     /// Index of a designator in [`Topology::parts`].
     fn index_of(&self, part: &str) -> Option<usize> {
         self.parts().iter().position(|p| *p == part)

@@ -494,22 +494,7 @@ impl Bounds<'_> {
                     (0..combos).any(|cmb| gain_at(v, g_hi[i], rd, cmb).0 >= lo * (1.0 - SLACK))
                 })
             };
-            let (mut a, mut b) = (self.r_min.ln(), rd_best.ln());
-            if reach(v, self.r_min) {
-                b = a;
-            }
-            for _ in 0..12 {
-                if b - a < 1e-4 {
-                    break;
-                }
-                let m = 0.5 * (a + b);
-                if reach(v, m.exp()) {
-                    b = m;
-                } else {
-                    a = m;
-                }
-            }
-            let rd_need = a.exp();
+            let rd_need = smallest_reaching(self.r_min, rd_best, 12, 1e-4, |x| reach(v, x));
             for i in 0..n {
                 headroom_ub = headroom_ub.min(cases[i].rails.vdd_v - vs_lo[i] - rd_need * id_lo[i]);
             }
@@ -755,19 +740,7 @@ fn rd_level_a(col: &mut Collector<'_>, v: &mut [f64], rd: usize, shelf: &Shelf) 
                     >= lo * (1.0 - SLACK)
             })
         };
-        let (mut a, mut b) = (rd0.ln(), cap.min(r_max).ln());
-        for _ in 0..16 {
-            if b - a < 1e-5 {
-                break;
-            }
-            let m = 0.5 * (a + b);
-            if reach(v, m.exp()) {
-                b = m;
-            } else {
-                a = m;
-            }
-        }
-        let rd_need = a.exp();
+        let rd_need = smallest_reaching(rd0, cap.min(r_max), 16, 1e-5, |x| reach(v, x));
         headroom = ops
             .iter()
             .map(|e| e.op.vds_v - (rd_need - rd_now) * e.op.id_a)
@@ -782,6 +755,36 @@ fn rd_level_a(col: &mut Collector<'_>, v: &mut [f64], rd: usize, shelf: &Shelf) 
         wc0.zin_min_ohm.max(wc1.zin_min_ohm) / p.spec.zin_min_ohm,
         parts,
     ))
+}
+
+/// A lower bound, ohms, of the smallest resistance in `[lo, hi]` at which
+/// `reach` (false → true as the resistance rises) holds: `lo` when it holds
+/// there, else bisection in ln R for at most `steps` halvings or until the
+/// bracket is narrower than `width` (in ln R). The lower end is returned,
+/// so the answer never overshoots.
+fn smallest_reaching(
+    lo: f64,
+    hi: f64,
+    steps: usize,
+    width: f64,
+    mut reach: impl FnMut(f64) -> bool,
+) -> f64 {
+    let (mut a, mut b) = (lo.ln(), hi.ln());
+    if reach(lo) {
+        return lo;
+    }
+    for _ in 0..steps {
+        if b - a < width {
+            break;
+        }
+        let m = 0.5 * (a + b);
+        if reach(m.exp()) {
+            b = m;
+        } else {
+            a = m;
+        }
+    }
+    a.exp()
 }
 
 /// First index in `0..n` where `pred` turns true (pred monotone false → true).

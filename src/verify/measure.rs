@@ -2,7 +2,7 @@
 //! way a bench (or a SPICE AC run) would measure them.
 
 use super::ac::{solve, Drive, Linear};
-use super::{Freq, Measured, SolveError};
+use super::{AcSolution, Freq, Measured, SolveError};
 use crate::netlist::{Element, Netlist, GROUND};
 use num_complex::Complex64;
 
@@ -23,11 +23,11 @@ fn signal_only(sig: usize) -> impl Fn(usize, f64) -> f64 {
     move |i, _| if i == sig { 1.0 } else { 0.0 }
 }
 
-/// V(output) per volt of signal EMF, load connected.
-pub(crate) fn gain(net: &Netlist, lin: &Linear, freq: Freq) -> Result<Complex64, SolveError> {
-    let sig = signal_index(net)?;
-    let drive = signal_only(sig);
-    let a = solve(
+/// The circuit driven by the signal source alone, at 1 V EMF, load
+/// connected.
+fn signal_driven(net: &Netlist, lin: &Linear, freq: Freq) -> Result<AcSolution, SolveError> {
+    let drive = signal_only(signal_index(net)?);
+    solve(
         net,
         lin,
         freq,
@@ -36,24 +36,17 @@ pub(crate) fn gain(net: &Netlist, lin: &Linear, freq: Freq) -> Result<Complex64,
             skip: &[],
             inject: None,
         },
-    )?;
-    Ok(a.node_v[net.output])
+    )
+}
+
+/// V(output) per volt of signal EMF, load connected.
+pub(crate) fn gain(net: &Netlist, lin: &Linear, freq: Freq) -> Result<Complex64, SolveError> {
+    Ok(signal_driven(net, lin, freq)?.node_v[net.output])
 }
 
 /// Gain, Zin and Zout (see [`super::small_signal`] for the definitions).
 pub(crate) fn measured(net: &Netlist, lin: &Linear, freq: Freq) -> Result<Measured, SolveError> {
-    let sig = signal_index(net)?;
-    let drive = signal_only(sig);
-    let a = solve(
-        net,
-        lin,
-        freq,
-        &Drive {
-            source_v: &drive,
-            skip: &[],
-            inject: None,
-        },
-    )?;
+    let a = signal_driven(net, lin, freq)?;
     let i_in = a
         .source_current(&net.signal_source)
         .ok_or_else(|| SolveError::ShortedSource {

@@ -237,6 +237,23 @@ struct Bound {
 struct Case {
     law: SquareLaw,
     rails: Rails,
+    /// Drain rail minus source rail of the bias network, volts (the
+    /// supply power is the drain current times it).
+    power_span: f64,
+}
+
+/// The per-case figures of one box bound (scratch space reused by every
+/// bound): drain current floor, gm at both current extremes and at the
+/// tolerance-shifted extremes, source voltage and overdrive floors.
+#[derive(Debug, Clone, Copy, Default)]
+struct PerCase {
+    id_lo: f64,
+    g_lo: f64,
+    g_hi: f64,
+    vs_lo: f64,
+    vov_lo: f64,
+    g_lo_up: f64,
+    g_hi_dn: f64,
 }
 
 impl Case {
@@ -264,6 +281,10 @@ struct Bounds<'a> {
     r_min: f64,
     r_max: f64,
     lambda_free: bool,
+    /// The source axes whose resistors enter the gain (not bypassed).
+    src_axes: Vec<usize>,
+    /// Scratch space of [`Bounds::bound`].
+    work: std::cell::RefCell<Vec<PerCase>>,
 }
 
 /// Saturation current, VGS, VS and gm at a point with RD = 0 (the drain at
@@ -312,11 +333,10 @@ impl Bounds<'_> {
         let vds_floor = s.vds_min_v;
         let cases = &self.cases;
         let n = cases.len();
-        let mut id_lo = vec![0.0; n];
-        let mut g_lo = vec![0.0; n];
-        let mut g_hi = vec![0.0; n];
-        let mut vs_lo = vec![0.0; n];
-        let mut vov_lo = vec![0.0; n];
+        let mut work = self.work.borrow_mut();
+        work.clear();
+        work.resize(n, PerCase::default());
+        let w = &mut work[..];
         set(v, &low_id);
         for (i, c) in cases.iter().enumerate() {
             let law = folded(&c.law, vds_floor);
@@ -330,9 +350,9 @@ impl Bounds<'_> {
             if s.limits.id_max_a.is_some_and(|m| id > m * (1.0 + SLACK)) {
                 return None;
             }
-            id_lo[i] = id;
-            g_lo[i] = gm;
-            vov_lo[i] = (vgs - c.law.vto_v).max(0.0);
+            w[i].id_lo = id;
+            w[i].g_lo = gm;
+            w[i].vov_lo = (vgs - c.law.vto_v).max(0.0);
         }
         set(v, &high_id);
         for (i, c) in cases.iter().enumerate() {
@@ -347,35 +367,33 @@ impl Bounds<'_> {
             {
                 return None;
             }
-            g_hi[i] = gm;
+            w[i].g_hi = gm;
         }
         // Tolerance-shifted extremes for the spread bound.
-        let mut g_lo_up = vec![0.0; n];
-        let mut g_hi_dn = vec![0.0; n];
         set(v, &low_id);
         shift(v, self.roles, self.tol, true);
         for (i, c) in cases.iter().enumerate() {
-            g_lo_up[i] = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).3;
+            w[i].g_lo_up = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).3;
         }
         set(v, &high_id);
         shift(v, self.roles, self.tol, false);
         for (i, c) in cases.iter().enumerate() {
-            g_hi_dn[i] = bias_at(t, v, &c.rails, &folded(&c.law, c.span())).3;
+            w[i].g_hi_dn = bias_at(t, v, &c.rails, &folded(&c.law, c.span())).3;
         }
         set(v, &low_vs);
         for (i, c) in cases.iter().enumerate() {
             let law = folded(&c.law, vds_floor);
-            vs_lo[i] = bias_at(t, v, &c.rails, &law).2;
+            w[i].vs_lo = bias_at(t, v, &c.rails, &law).2;
         }
         // Headroom: VDS = VDD − VS − RD·ID must reach max(vds_min, vov).
         let mut rd_cap = f64::INFINITY;
         for i in 0..n {
-            let room = cases[i].rails.vdd_v - vs_lo[i] - vds_floor.max(vov_lo[i]);
+            let room = cases[i].rails.vdd_v - w[i].vs_lo - vds_floor.max(w[i].vov_lo);
             if room < -SLACK * span {
                 return None;
             }
-            if id_lo[i] > 0.0 {
-                rd_cap = rd_cap.min(room.max(0.0) / id_lo[i]);
+            if w[i].id_lo > 0.0 {
+                rd_cap = rd_cap.min(room.max(0.0) / w[i].id_lo);
             }
         }
         if self.rd.is_some() && rd_cap < self.r_min * (1.0 - 1e-9) {
@@ -388,9 +406,8 @@ impl Bounds<'_> {
         // the largest of the per-corner current floors bounds it.
         let mut power_lb: f64 = 0.0;
         for i in 0..n {
-            headroom_ub = headroom_ub.min(cases[i].rails.vdd_v - vs_lo[i] - rd_floor * id_lo[i]);
-            let net = t.bias(v, &cases[i].rails);
-            power_lb = power_lb.max(id_lo[i] * (net.drain_rail_v - net.source_rail_v));
+            headroom_ub = headroom_ub.min(cases[i].rails.vdd_v - w[i].vs_lo - rd_floor * w[i].id_lo);
+            power_lb = power_lb.max(w[i].id_lo * cases[i].power_span);
         }
         if s.limits
             .power_max_w
@@ -406,11 +423,7 @@ impl Bounds<'_> {
         // Gain bounds: |gain| rises with gm and RD and is monotone in each
         // source resistor, so the extremes of the source axes bound it.
         // (A bypassed source resistor never enters the gain: no extremes.)
-        let src_axes: Vec<usize> = (0..axes.len())
-            .filter(|&i| {
-                !axes[i].gate_axis && axes[i].positions.iter().any(|k| !t.bypassed().contains(k))
-            })
-            .collect();
+        let src_axes = &self.src_axes;
         let combos = 1usize << src_axes.len();
         let gain_at_m = |v: &mut [f64], gm: f64, rd: f64, combo: usize, mult: f64| {
             for (bit, &ai) in src_axes.iter().enumerate() {
@@ -449,10 +462,10 @@ impl Bounds<'_> {
         // Where Zout is RD itself (gds = 0), zout_max caps RD at its
         // upper tolerance extreme.
         let mut zout_cap = f64::INFINITY;
-        let scan = spread_free && self.rd.is_some() && g_hi_dn[0] > 0.0 && {
+        let scan = spread_free && self.rd.is_some() && w[0].g_hi_dn > 0.0 && {
             let r0 = self.r_min;
-            let (a, _, z) = gain_at_m(v, g_hi_dn[0], r0, 0, 1.0);
-            let b = gain_at_m(v, g_hi_dn[0], 2.0 * r0, 0, 1.0).0;
+            let (a, _, z) = gain_at_m(v, w[0].g_hi_dn, r0, 0, 1.0);
+            let b = gain_at_m(v, w[0].g_hi_dn, 2.0 * r0, 0, 1.0).0;
             if let Some(zm) = s.limits.zout_max_ohm {
                 if ((z / r0) - 1.0).abs() < 1e-12 {
                     zout_cap = zm * (1.0 + SLACK) / (1.0 + self.tol);
@@ -471,10 +484,10 @@ impl Bounds<'_> {
                 let mut zin_ub: f64 = 0.0;
                 for cmb in 0..combos {
                     if !scan {
-                        ub = ub.max(gain_at(v, g_hi[i], rd_best, cmb).0);
+                        ub = ub.max(gain_at(v, w[i].g_hi, rd_best, cmb).0);
                     }
                     if need_zin {
-                        zin_ub = zin_ub.max(gain_at(v, g_lo[i], rd_best, cmb).1);
+                        zin_ub = zin_ub.max(gain_at(v, w[i].g_lo, rd_best, cmb).1);
                     }
                 }
                 if !scan {
@@ -491,12 +504,12 @@ impl Bounds<'_> {
         if self.rd.is_some() && !scan {
             let reach = |v: &mut [f64], rd: f64| {
                 (0..n).all(|i| {
-                    (0..combos).any(|cmb| gain_at(v, g_hi[i], rd, cmb).0 >= lo * (1.0 - SLACK))
+                    (0..combos).any(|cmb| gain_at(v, w[i].g_hi, rd, cmb).0 >= lo * (1.0 - SLACK))
                 })
             };
             let rd_need = smallest_reaching(self.r_min, rd_best, 12, 1e-4, |x| reach(v, x));
             for i in 0..n {
-                headroom_ub = headroom_ub.min(cases[i].rails.vdd_v - vs_lo[i] - rd_need * id_lo[i]);
+                headroom_ub = headroom_ub.min(cases[i].rails.vdd_v - w[i].vs_lo - rd_need * w[i].id_lo);
             }
         }
         if need_zin && zin_ub_min < s.zin_min_ohm * (1.0 - SLACK) {
@@ -516,8 +529,8 @@ impl Bounds<'_> {
             for i in 0..n {
                 let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
                 for cmb in 0..combos {
-                    lb_i = lb_i.min(gain_at_m(v, g_lo_up[i], rd_ref, cmb, 1.0 - self.tol).0);
-                    ub_i = ub_i.max(gain_at_m(v, g_hi_dn[i], rd_ref, cmb, 1.0 + self.tol).0);
+                    lb_i = lb_i.min(gain_at_m(v, w[i].g_lo_up, rd_ref, cmb, 1.0 - self.tol).0);
+                    ub_i = ub_i.max(gain_at_m(v, w[i].g_hi_dn, rd_ref, cmb, 1.0 + self.tol).0);
                 }
                 // With a source resistance the gain from the EMF is av times
                 // Zin/(Zin + Rsig) >= zin_min/(zin_min + Rsig) for any
@@ -563,7 +576,7 @@ impl Bounds<'_> {
                     m.gain_error = err.max(level_error);
                     m.gain_spread = spread;
                     m.headroom_v = (0..n)
-                        .map(|i| cases[i].rails.vdd_v - vs_lo[i] - x * id_lo[i])
+                        .map(|i| cases[i].rails.vdd_v - w[i].vs_lo - x * w[i].id_lo)
                         .fold(f64::INFINITY, f64::min)
                         - s.vds_min_v;
                     m.zin_ratio = zin_ratio;
@@ -978,7 +991,15 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         cases: p
             .rail_extremes()
             .into_iter()
-            .flat_map(|rails| p.corners.iter().map(move |c| Case { law: c.law, rails }))
+            .flat_map(|rails| {
+                let net = t.bias(&v, &rails);
+                let power_span = net.drain_rail_v - net.source_rail_v;
+                p.corners.iter().map(move |c| Case {
+                    law: c.law,
+                    rails,
+                    power_span,
+                })
+            })
             .collect(),
         rd_values: &shelf.values,
         prefer: col.prefer,
@@ -996,6 +1017,12 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         r_min: shelf.values[0],
         r_max,
         lambda_free: p.corners.iter().all(|c| c.law.lambda_per_v == 0.0),
+        src_axes: (0..axes.len())
+            .filter(|&i| {
+                !axes[i].gate_axis && axes[i].positions.iter().any(|k| !t.bypassed().contains(k))
+            })
+            .collect(),
+        work: std::cell::RefCell::new(Vec::new()),
     };
     let mut oidx = vec![0usize; outer.len()];
     loop {

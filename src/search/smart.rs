@@ -406,7 +406,8 @@ impl Bounds<'_> {
         // the largest of the per-corner current floors bounds it.
         let mut power_lb: f64 = 0.0;
         for i in 0..n {
-            headroom_ub = headroom_ub.min(cases[i].rails.vdd_v - w[i].vs_lo - rd_floor * w[i].id_lo);
+            headroom_ub =
+                headroom_ub.min(cases[i].rails.vdd_v - w[i].vs_lo - rd_floor * w[i].id_lo);
             power_lb = power_lb.max(w[i].id_lo * cases[i].power_span);
         }
         if s.limits
@@ -479,15 +480,15 @@ impl Bounds<'_> {
         let mut min_ub = f64::INFINITY;
         let mut zin_ub_min = f64::INFINITY;
         if !scan || need_zin {
-            for i in 0..n {
+            for c in w.iter() {
                 let mut ub: f64 = 0.0;
                 let mut zin_ub: f64 = 0.0;
                 for cmb in 0..combos {
                     if !scan {
-                        ub = ub.max(gain_at(v, w[i].g_hi, rd_best, cmb).0);
+                        ub = ub.max(gain_at(v, c.g_hi, rd_best, cmb).0);
                     }
                     if need_zin {
-                        zin_ub = zin_ub.max(gain_at(v, w[i].g_lo, rd_best, cmb).1);
+                        zin_ub = zin_ub.max(gain_at(v, c.g_lo, rd_best, cmb).1);
                     }
                 }
                 if !scan {
@@ -509,7 +510,8 @@ impl Bounds<'_> {
             };
             let rd_need = smallest_reaching(self.r_min, rd_best, 12, 1e-4, |x| reach(v, x));
             for i in 0..n {
-                headroom_ub = headroom_ub.min(cases[i].rails.vdd_v - w[i].vs_lo - rd_need * w[i].id_lo);
+                headroom_ub =
+                    headroom_ub.min(cases[i].rails.vdd_v - w[i].vs_lo - rd_need * w[i].id_lo);
             }
         }
         if need_zin && zin_ub_min < s.zin_min_ohm * (1.0 - SLACK) {
@@ -526,11 +528,11 @@ impl Bounds<'_> {
             let rd_ref = self.r_min;
             let mut max_lb: f64 = 0.0;
             let mut min_ub2 = f64::INFINITY;
-            for i in 0..n {
+            for c in w.iter() {
                 let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
                 for cmb in 0..combos {
-                    lb_i = lb_i.min(gain_at_m(v, w[i].g_lo_up, rd_ref, cmb, 1.0 - self.tol).0);
-                    ub_i = ub_i.max(gain_at_m(v, w[i].g_hi_dn, rd_ref, cmb, 1.0 + self.tol).0);
+                    lb_i = lb_i.min(gain_at_m(v, c.g_lo_up, rd_ref, cmb, 1.0 - self.tol).0);
+                    ub_i = ub_i.max(gain_at_m(v, c.g_hi_dn, rd_ref, cmb, 1.0 + self.tol).0);
                 }
                 // With a source resistance the gain from the EMF is av times
                 // Zin/(Zin + Rsig) >= zin_min/(zin_min + Rsig) for any

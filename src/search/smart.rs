@@ -254,6 +254,10 @@ struct PerCase {
     vov_lo: f64,
     g_lo_up: f64,
     g_hi_dn: f64,
+    /// Drain current floor at the current-raising tolerance extreme.
+    id_up: f64,
+    /// Source voltage floor at the current-raising tolerance extreme.
+    vs_up: f64,
 }
 
 impl Case {
@@ -275,6 +279,8 @@ struct Bounds<'a> {
     roles: &'static [Role],
     /// Smallest resistor tolerance on the shelf (the safe shift for bounds).
     tol: f64,
+    /// Largest resistor tolerance on the shelf.
+    tol_max: f64,
     p: &'a Problem,
     t: &'static dyn Topology,
     rd: Option<usize>,
@@ -373,7 +379,9 @@ impl Bounds<'_> {
         set(v, &low_id);
         shift(v, self.roles, self.tol, true);
         for (i, c) in cases.iter().enumerate() {
-            w[i].g_lo_up = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).3;
+            let (id, _, _, gm) = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor));
+            w[i].id_up = id;
+            w[i].g_lo_up = gm;
         }
         set(v, &high_id);
         shift(v, self.roles, self.tol, false);
@@ -385,6 +393,19 @@ impl Bounds<'_> {
             let law = folded(&c.law, vds_floor);
             w[i].vs_lo = bias_at(t, v, &c.rails, &law).2;
         }
+        // The source voltage floor at the current-raising tolerance extreme
+        // of any point: VS rises with VG and with each source resistor, and
+        // there the tap is up and each source resistor at most its lowest
+        // option times (1 − the largest tolerance).
+        for (x, r) in v.iter_mut().zip(self.roles) {
+            if *r == Role::Source {
+                *x *= 1.0 - self.tol_max;
+            }
+        }
+        for (i, c) in cases.iter().enumerate() {
+            let law = folded(&c.law, vds_floor);
+            w[i].vs_up = bias_at(t, v, &c.rails, &law).2;
+        }
         // Headroom: VDS = VDD − VS − RD·ID must reach max(vds_min, vov).
         let mut rd_cap = f64::INFINITY;
         for i in 0..n {
@@ -394,6 +415,15 @@ impl Bounds<'_> {
             }
             if w[i].id_lo > 0.0 {
                 rd_cap = rd_cap.min(room.max(0.0) / w[i].id_lo);
+            }
+            // At the current-raising tolerance extreme (RD up too) VDS
+            // must still reach vds_min.
+            let room_up = cases[i].rails.vdd_v - w[i].vs_up - vds_floor + SLACK * span;
+            if room_up < 0.0 {
+                return None;
+            }
+            if w[i].id_up > 0.0 {
+                rd_cap = rd_cap.min(room_up / ((1.0 + self.tol) * w[i].id_up));
             }
         }
         if self.rd.is_some() && rd_cap < self.r_min * (1.0 - 1e-9) {
@@ -408,7 +438,9 @@ impl Bounds<'_> {
         for i in 0..n {
             headroom_ub =
                 headroom_ub.min(cases[i].rails.vdd_v - w[i].vs_lo - rd_floor * w[i].id_lo);
-            power_lb = power_lb.max(w[i].id_lo * cases[i].power_span);
+            // The current-raising tolerance extreme is a point of every
+            // candidate's envelope.
+            power_lb = power_lb.max(w[i].id_up * cases[i].power_span);
         }
         if s.limits
             .power_max_w
@@ -420,7 +452,9 @@ impl Bounds<'_> {
             .iter()
             .zip(ranges)
             .find_map(|(a, r)| a.zin_max(r.0, r.1))
-            .map_or(f64::INFINITY, |z| z / s.zin_min_ohm);
+            // Zin is at most R1∥R2, and both at their low extreme is a
+            // point of every candidate's envelope.
+            .map_or(f64::INFINITY, |z| z * (1.0 - self.tol) / s.zin_min_ohm);
         // Gain bounds: |gain| rises with gm and RD and is monotone in each
         // source resistor, so the extremes of the source axes bound it.
         // (A bypassed source resistor never enters the gain: no extremes.)
@@ -577,8 +611,11 @@ impl Bounds<'_> {
                     let mut m = optimistic(s, 1.0, 0.0, power_lb, 1.0, self.parts_floor);
                     m.gain_error = err.max(level_error);
                     m.gain_spread = spread;
+                    // VDS at the current-raising extreme (RD up too).
                     m.headroom_v = (0..n)
-                        .map(|i| cases[i].rails.vdd_v - w[i].vs_lo - x * w[i].id_lo)
+                        .map(|i| {
+                            cases[i].rails.vdd_v - w[i].vs_up - x * (1.0 + self.tol) * w[i].id_up
+                        })
                         .fold(f64::INFINITY, f64::min)
                         - s.vds_min_v;
                     m.zin_ratio = zin_ratio;
@@ -1013,6 +1050,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             .copied()
             .fold(f64::INFINITY, f64::min)
             .max(0.0),
+        tol_max: shelf.tolerances.iter().copied().fold(0.0, f64::max),
         p,
         t,
         rd: if feedback { None } else { run_k },

@@ -256,8 +256,10 @@ struct PerCase {
     g_hi_dn: f64,
     /// Drain current floor at the current-raising tolerance extreme.
     id_up: f64,
-    /// Source voltage floor at the current-raising tolerance extreme.
-    vs_up: f64,
+    /// Floors of VS and of ID at the two tolerance extremes P and P' of
+    /// the headroom bound.
+    vs_at: [f64; 2],
+    id_at: [f64; 2],
 }
 
 impl Case {
@@ -346,7 +348,15 @@ impl Bounds<'_> {
         set(v, &low_id);
         for (i, c) in cases.iter().enumerate() {
             let law = folded(&c.law, vds_floor);
-            let (id, vgs, _, gm) = bias_at(t, v, &c.rails, &law);
+            let (id, vgs_here, _, gm) = bias_at(t, v, &c.rails, &law);
+            // The lowest VGS of the box: the least current with the largest
+            // k (λ folded at the widest VDS), since more k draws more
+            // current through the source resistors and lowers VGS.
+            let vgs = if c.law.lambda_per_v == 0.0 {
+                vgs_here
+            } else {
+                bias_at(t, v, &c.rails, &folded(&c.law, c.span())).1
+            };
             if s.device
                 .vgs_max_v
                 .is_some_and(|m| vgs > m + SLACK * m.abs().max(1.0))
@@ -363,10 +373,16 @@ impl Bounds<'_> {
         set(v, &high_id);
         for (i, c) in cases.iter().enumerate() {
             let law = folded(&c.law, c.span());
-            let (id, vgs, _, gm) = bias_at(t, v, &c.rails, &law);
+            let (id, vgs_here, _, gm) = bias_at(t, v, &c.rails, &law);
             if id <= 0.0 {
                 return None;
             }
+            // The highest VGS: the most current with the smallest k.
+            let vgs = if c.law.lambda_per_v == 0.0 {
+                vgs_here
+            } else {
+                bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).1
+            };
             if s.device
                 .vgs_min_v
                 .is_some_and(|m| vgs < m - SLACK * m.abs().max(1.0))
@@ -393,18 +409,37 @@ impl Bounds<'_> {
             let law = folded(&c.law, vds_floor);
             w[i].vs_lo = bias_at(t, v, &c.rails, &law).2;
         }
-        // The source voltage floor at the current-raising tolerance extreme
-        // of any point: VS rises with VG and with each source resistor, and
-        // there the tap is up and each source resistor at most its lowest
-        // option times (1 − the largest tolerance).
-        for (x, r) in v.iter_mut().zip(self.roles) {
-            if *r == Role::Source {
-                *x *= 1.0 - self.tol_max;
+        // Two tolerance extremes of every candidate, both with the divider
+        // tap up and RD up: P with the source resistors down (the most
+        // current) and P' with them up (the most source voltage per amp).
+        // At each, floors of VS and ID over the box: VS rises with VG and
+        // with each source resistor, ID rises with VG and falls with them,
+        // and the tap moved by the smallest tolerance is at most where any
+        // candidate's tap goes.
+        let tilted = |v: &mut [f64], pick: &dyn Fn(&Axis, (usize, usize)) -> usize, src: f64| {
+            set(v, pick);
+            for (x, r) in v.iter_mut().zip(self.roles) {
+                match r {
+                    Role::DivTop => *x *= 1.0 - self.tol,
+                    Role::DivBottom => *x *= 1.0 + self.tol,
+                    Role::Source => *x *= src,
+                    _ => {}
+                }
             }
-        }
-        for (i, c) in cases.iter().enumerate() {
-            let law = folded(&c.law, vds_floor);
-            w[i].vs_up = bias_at(t, v, &c.rails, &law).2;
+        };
+        let points = [
+            (1.0 - self.tol_max, 1.0 - self.tol),
+            (1.0 + self.tol, 1.0 + self.tol_max),
+        ];
+        for (j, &(vs_src, id_src)) in points.iter().enumerate() {
+            tilted(v, &low_vs, vs_src);
+            for (i, c) in cases.iter().enumerate() {
+                w[i].vs_at[j] = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).2;
+            }
+            tilted(v, &low_id, id_src);
+            for (i, c) in cases.iter().enumerate() {
+                w[i].id_at[j] = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).0;
+            }
         }
         // Headroom: VDS = VDD − VS − RD·ID must reach max(vds_min, vov).
         let mut rd_cap = f64::INFINITY;
@@ -416,14 +451,16 @@ impl Bounds<'_> {
             if w[i].id_lo > 0.0 {
                 rd_cap = rd_cap.min(room.max(0.0) / w[i].id_lo);
             }
-            // At the current-raising tolerance extreme (RD up too) VDS
-            // must still reach vds_min.
-            let room_up = cases[i].rails.vdd_v - w[i].vs_up - vds_floor + SLACK * span;
-            if room_up < 0.0 {
-                return None;
-            }
-            if w[i].id_up > 0.0 {
-                rd_cap = rd_cap.min(room_up / ((1.0 + self.tol) * w[i].id_up));
+            // At both tolerance extremes P and P' VDS must still reach
+            // vds_min.
+            for j in 0..2 {
+                let room = cases[i].rails.vdd_v - w[i].vs_at[j] - vds_floor + SLACK * span;
+                if room < 0.0 {
+                    return None;
+                }
+                if w[i].id_at[j] > 0.0 {
+                    rd_cap = rd_cap.min(room / ((1.0 + self.tol) * w[i].id_at[j]));
+                }
             }
         }
         if self.rd.is_some() && rd_cap < self.r_min * (1.0 - 1e-9) {
@@ -611,10 +648,14 @@ impl Bounds<'_> {
                     let mut m = optimistic(s, 1.0, 0.0, power_lb, 1.0, self.parts_floor);
                     m.gain_error = err.max(level_error);
                     m.gain_spread = spread;
-                    // VDS at the current-raising extreme (RD up too).
+                    // VDS at the tolerance extremes P and P'.
+                    let rd_up = x * (1.0 + self.tol);
                     m.headroom_v = (0..n)
                         .map(|i| {
-                            cases[i].rails.vdd_v - w[i].vs_up - x * (1.0 + self.tol) * w[i].id_up
+                            let c = &w[i];
+                            let vdd = cases[i].rails.vdd_v;
+                            (vdd - c.vs_at[0] - rd_up * c.id_at[0])
+                                .min(vdd - c.vs_at[1] - rd_up * c.id_at[1])
                         })
                         .fold(f64::INFINITY, f64::min)
                         - s.vds_min_v;

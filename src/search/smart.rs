@@ -174,22 +174,21 @@ fn par2(a: f64, b: f64) -> f64 {
     }
 }
 
-/// The drain resistor scanned over the shelf for one box (λ = 0, where
-/// |gain| = A·(RD∥RL) with A fixed by the bias): `strong` is a lower bound
-/// of the largest A over the corners and the current-raising tolerance
-/// extreme, `weak` an upper bound of the smallest A at the other extreme,
-/// both for every point of the box. With RD at its own tolerance extremes
-/// every candidate then has a point with |gain| at least `strong·R'(RD(1+t))`
-/// and one with at most `weak·R'(RD(1−t))`.
-struct RdScan {
+/// The |gain| model of one box for λ = 0, where |gain| = A·(RD∥RL) with
+/// A fixed by the bias: `strong` is a lower bound of the largest A over
+/// the corners and the current-raising tolerance extreme, `weak` an upper
+/// bound of the smallest A at the other extreme, both for every point of
+/// the box. With RD at its own tolerance extremes every candidate then has
+/// a point with |gain| at least `strong·R'(RD(1+t))` and one with at most
+/// `weak·R'(RD(1−t))`.
+struct Proportional {
     strong: f64,
     weak: f64,
     tol: f64,
     rl: f64,
-    rd_cap: f64,
 }
 
-impl RdScan {
+impl Proportional {
     /// (some point's |gain| is at least, some point's at most), V/V.
     fn gains(&self, rd: f64) -> (f64, f64) {
         (
@@ -197,27 +196,65 @@ impl RdScan {
             self.weak * par2(rd * (1.0 - self.tol), self.rl),
         )
     }
+}
 
-    /// The shelf values that can keep every point inside `[lo, hi]` and
-    /// leave the headroom (RD at most `rd_cap`): one run of the sorted
-    /// shelf, since both gains rise with RD.
-    fn window(&self, values: &[f64], lo: f64, hi: f64) -> (usize, usize) {
-        let first = values.partition_point(|&x| self.gains(x).1 < lo * (1.0 - SLACK));
-        let last = values.partition_point(|&x| {
-            self.gains(x).0 <= hi * (1.0 + SLACK) && x <= self.rd_cap * (1.0 + 1e-9)
-        });
-        (first.min(last), last)
-    }
+/// Lower bounds of the worst-corner gain error and of the gain spread from
+/// the two |gain| bounds of [`scan_rd`], fractions of the target `g`.
+fn gain_terms(strong: f64, weak: f64, g: f64) -> (f64, f64) {
+    (
+        ((strong - g).max(g - weak)).max(0.0) / g,
+        (strong - weak).max(0.0) / g,
+    )
+}
 
-    /// Lower bounds of the worst-corner gain error and of the gain spread
-    /// with this RD, fractions of the target `g`.
-    fn gain_terms(&self, rd: f64, g: f64) -> (f64, f64) {
-        let (strong, weak) = self.gains(rd);
-        (
-            ((strong - g).max(g - weak)).max(0.0) / g,
-            (strong - weak).max(0.0) / g,
-        )
+/// The drain resistor scanned over the shelf for one box. `gains(RD)`
+/// gives (a |gain| some point of every candidate reaches at least, one
+/// some point reaches at most), both rising with RD; `metrics(RD, error,
+/// spread)` the optimistic metrics with that RD. The window is the run of
+/// shelf values that can keep every point inside `[lo, hi]` with RD at
+/// most `rd_cap`. For a single configuration every RD's score bound is
+/// kept; otherwise the scan stops past the bottom of the error's V (the
+/// strong side binds), where a larger RD only worsens error, spread and
+/// headroom. `None` when no RD can work.
+#[allow(clippy::too_many_arguments)]
+fn scan_rd(
+    values: &[f64],
+    (lo, hi): (f64, f64),
+    g: f64,
+    rd_cap: f64,
+    single: bool,
+    mut gains: impl FnMut(f64) -> (f64, f64),
+    mut metrics: impl FnMut(f64, f64, f64) -> Metrics,
+    score_of: impl Fn(&Metrics) -> f64,
+) -> Option<Bound> {
+    let first = first_true(values.len(), |j| gains(values[j]).1 >= lo * (1.0 - SLACK));
+    let last = first_true(values.len(), |j| {
+        let x = values[j];
+        !(x <= rd_cap * (1.0 + 1e-9) && gains(x).0 <= hi * (1.0 + SLACK))
+    });
+    let window = (first.min(last), last);
+    let mut best: Option<(f64, Metrics)> = None;
+    let mut rd_scores = Vec::new();
+    for &x in &values[window.0..window.1] {
+        let (strong, weak) = gains(x);
+        let (err, spread) = gain_terms(strong, weak, g);
+        let m = metrics(x, err, spread);
+        let sc = score_of(&m);
+        if single {
+            rd_scores.push(sc);
+        }
+        if best.as_ref().is_none_or(|(b, _)| sc > *b) {
+            best = Some((sc, m));
+        }
+        if !single && strong - g >= g - weak {
+            break;
+        }
     }
+    best.map(|(_, metrics)| Bound {
+        metrics,
+        rd_window: Some(window),
+        rd_scores,
+    })
 }
 
 /// The bound of one box.
@@ -256,6 +293,10 @@ struct PerCase {
     g_hi_dn: f64,
     /// Drain current floor at the current-raising tolerance extreme.
     id_up: f64,
+    /// Ceiling and floor of gds over the box's tolerance extremes,
+    /// siemens (λ > 0 only).
+    gds_hi: f64,
+    gds_lo: f64,
     /// Floors of VS and of ID at the two tolerance extremes P and P' of
     /// the headroom bound.
     vs_at: [f64; 2],
@@ -404,6 +445,27 @@ impl Bounds<'_> {
         for (i, c) in cases.iter().enumerate() {
             w[i].g_hi_dn = bias_at(t, v, &c.rails, &folded(&c.law, c.span())).3;
         }
+        if !self.lambda_free {
+            // gds = λ·ID/(1 + λ·VDS) (ngspice's λ·ID0) with VDS between
+            // vds_min and the span, and ID at most the current of the box's
+            // high point moved by the largest tolerance toward more current
+            // (k folded at the span), at least that of the low point moved
+            // the other way (k folded at vds_min).
+            set(v, &high_id);
+            shift(v, self.roles, self.tol_max, true);
+            for (i, c) in cases.iter().enumerate() {
+                let id = bias_at(t, v, &c.rails, &folded(&c.law, c.span())).0;
+                let l = c.law.lambda_per_v;
+                w[i].gds_hi = l * id.max(0.0) / (1.0 + l * vds_floor);
+            }
+            set(v, &low_id);
+            shift(v, self.roles, self.tol_max, false);
+            for (i, c) in cases.iter().enumerate() {
+                let id = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).0;
+                let l = c.law.lambda_per_v;
+                w[i].gds_lo = l * id.max(0.0) / (1.0 + l * c.span());
+            }
+        }
         set(v, &low_vs);
         for (i, c) in cases.iter().enumerate() {
             let law = folded(&c.law, vds_floor);
@@ -497,7 +559,7 @@ impl Bounds<'_> {
         // (A bypassed source resistor never enters the gain: no extremes.)
         let src_axes = &self.src_axes;
         let combos = 1usize << src_axes.len();
-        let gain_at_m = |v: &mut [f64], gm: f64, rd: f64, combo: usize, mult: f64| {
+        let gain_at_g = |v: &mut [f64], gm: f64, gds: f64, rd: f64, combo: usize, mult: f64| {
             for (bit, &ai) in src_axes.iter().enumerate() {
                 let r = ranges[ai];
                 let j = if combo & (1 << bit) != 0 {
@@ -514,12 +576,15 @@ impl Bounds<'_> {
             }
             let ctx = SignalContext {
                 gm_s: gm,
-                gds_s: 0.0,
+                gds_s: gds,
                 rl_ohm: s.rl_ohm,
                 rsig_ohm: s.source_resistance_ohm,
             };
             let ss = t.small_signal(v, &ctx);
             (ss.av.abs(), ss.zin_ohm, ss.zout_ohm)
+        };
+        let gain_at_m = |v: &mut [f64], gm: f64, rd: f64, combo: usize, mult: f64| {
+            gain_at_g(v, gm, 0.0, rd, combo, mult)
         };
         let gain_at =
             |v: &mut [f64], gm: f64, rd: f64, combo: usize| gain_at_m(v, gm, rd, combo, 1.0);
@@ -545,35 +610,41 @@ impl Bounds<'_> {
             }
             a > 0.0 && ((b / a) / (par2(2.0 * r0, rl) / par2(r0, rl)) - 1.0).abs() < 1e-9
         };
+        // With λ > 0 there is no proportionality, but the drain resistor is
+        // still scanned, with gm and gds at their extremes (below).
+        let lambda_scan = !self.lambda_free
+            && self.rd.is_some()
+            && (s.source_resistance_ohm == 0.0 || !t.input_at_source());
+        let scanned = scan || lambda_scan;
         // The level at the largest RD (the scan's window implies it) and
         // the Zin of a common-gate input.
         let need_zin = t.input_at_source() && self.lambda_free;
         let mut min_ub = f64::INFINITY;
         let mut zin_ub_min = f64::INFINITY;
-        if !scan || need_zin {
+        if !scanned || need_zin {
             for c in w.iter() {
                 let mut ub: f64 = 0.0;
                 let mut zin_ub: f64 = 0.0;
                 for cmb in 0..combos {
-                    if !scan {
+                    if !scanned {
                         ub = ub.max(gain_at(v, c.g_hi, rd_best, cmb).0);
                     }
                     if need_zin {
                         zin_ub = zin_ub.max(gain_at(v, c.g_lo, rd_best, cmb).1);
                     }
                 }
-                if !scan {
+                if !scanned {
                     min_ub = min_ub.min(ub);
                 }
                 zin_ub_min = zin_ub_min.min(zin_ub);
             }
         }
-        if !scan && min_ub < lo * (1.0 - SLACK) {
+        if !scanned && min_ub < lo * (1.0 - SLACK) {
             return None;
         }
         // The smallest RD that can reach |gain| = lo at every corner (gain
         // rises with RD): the headroom cannot exceed what that RD leaves.
-        if self.rd.is_some() && !scan {
+        if self.rd.is_some() && !scanned {
             let reach = |v: &mut [f64], rd: f64| {
                 (0..n).all(|i| {
                     (0..combos).any(|cmb| gain_at(v, w[i].g_hi, rd, cmb).0 >= lo * (1.0 - SLACK))
@@ -595,6 +666,29 @@ impl Bounds<'_> {
         let g_target = s.target.gain;
         let mut level_error = ((g_target - min_ub) / g_target).max(0.0);
         let mut at_rd: Option<Bound> = None;
+        // A single configuration keeps the bound of each RD, so the visit
+        // can skip those that cannot be kept.
+        let single = ranges.iter().all(|r| r.1 - r.0 == 1);
+        // The optimistic metrics with drain resistor `x` and the given
+        // gain error and spread bounds: VDS at the tolerance extremes P and
+        // P', the power and Zin of the box.
+        let rd_metrics = |x: f64, err: f64, spread: f64| {
+            let mut m = optimistic(s, 1.0, 0.0, power_lb, 1.0, self.parts_floor);
+            m.gain_error = err;
+            m.gain_spread = spread;
+            let rd_up = x * (1.0 + self.tol);
+            m.headroom_v = (0..n)
+                .map(|i| {
+                    let c = &w[i];
+                    let vdd = cases[i].rails.vdd_v;
+                    (vdd - c.vs_at[0] - rd_up * c.id_at[0])
+                        .min(vdd - c.vs_at[1] - rd_up * c.id_at[1])
+                })
+                .fold(f64::INFINITY, f64::min)
+                - s.vds_min_v;
+            m.zin_ratio = zin_ratio;
+            m
+        };
         if spread_free {
             let rd_ref = self.r_min;
             let mut max_lb: f64 = 0.0;
@@ -630,61 +724,76 @@ impl Bounds<'_> {
             }
             if scan {
                 let unit = par2(rd_ref, rl);
-                let scan = RdScan {
+                let model = Proportional {
                     strong: max_lb / unit,
                     weak: min_ub2 / unit,
                     tol: self.tol,
                     rl,
-                    rd_cap: rd_cap.min(zout_cap),
                 };
-                let mut best: Option<(f64, Metrics)> = None;
-                let window = scan.window(self.rd_values, lo, hi);
-                // A single configuration keeps the bound of each RD, so
-                // the visit can skip those that cannot be kept.
-                let single = ranges.iter().all(|r| r.1 - r.0 == 1);
-                let mut rd_scores = Vec::new();
-                for &x in &self.rd_values[window.0..window.1] {
-                    let (err, spread) = scan.gain_terms(x, g_target);
-                    let mut m = optimistic(s, 1.0, 0.0, power_lb, 1.0, self.parts_floor);
-                    m.gain_error = err.max(level_error);
-                    m.gain_spread = spread;
-                    // VDS at the tolerance extremes P and P'.
-                    let rd_up = x * (1.0 + self.tol);
-                    m.headroom_v = (0..n)
-                        .map(|i| {
-                            let c = &w[i];
-                            let vdd = cases[i].rails.vdd_v;
-                            (vdd - c.vs_at[0] - rd_up * c.id_at[0])
-                                .min(vdd - c.vs_at[1] - rd_up * c.id_at[1])
-                        })
-                        .fold(f64::INFINITY, f64::min)
-                        - s.vds_min_v;
-                    m.zin_ratio = zin_ratio;
-                    let sc = score(s, &m, self.prefer);
-                    if single {
-                        rd_scores.push(sc);
-                    }
-                    if best.as_ref().is_none_or(|(b, _)| sc > *b) {
-                        best = Some((sc, m));
-                    }
-                    // Past the bottom of the error's V (the strong side
-                    // binds), a larger RD only worsens error, spread and
-                    // headroom: no later value scores higher.
-                    let (strong, weak) = scan.gains(x);
-                    if !single && strong - g_target >= g_target - weak {
-                        break;
-                    }
-                }
-                match best {
-                    Some((_, metrics)) => {
-                        at_rd = Some(Bound {
-                            metrics,
-                            rd_window: Some(window),
-                            rd_scores,
-                        })
-                    }
+                match scan_rd(
+                    self.rd_values,
+                    (lo, hi),
+                    g_target,
+                    rd_cap.min(zout_cap),
+                    single,
+                    |x| model.gains(x),
+                    |x, err, spread| rd_metrics(x, err.max(level_error), spread),
+                    |m| score(s, m, self.prefer),
+                ) {
+                    Some(b) => at_rd = Some(b),
                     None => return None,
                 }
+            }
+        }
+        if lambda_scan {
+            // λ > 0: the operating point moves with RD, but gm stays
+            // between its floor (k folded at vds_min) and its ceiling (k
+            // folded at the span), gds between its floor and ceiling, and
+            // |gain| rises with gm and RD and falls with gds. So for every
+            // candidate the current-raising tolerance extreme reaches at
+            // least the gain with (gm floor, gds ceiling) and the other
+            // extreme at most the gain with (gm ceiling, gds floor).
+            let rsig = s.source_resistance_ohm;
+            let zin_factor = s.zin_min_ohm / (s.zin_min_ohm + rsig);
+            let tol = self.tol;
+            // A common-source stage loses |gain| to gds; elsewhere both
+            // ends of the gds range are taken.
+            let both_gds = t.input_at_source();
+            let mut gains = |x: f64| {
+                let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
+                for c in w.iter() {
+                    let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
+                    for cmb in 0..combos {
+                        let (x_up, x_dn) = (x * (1.0 + tol), x * (1.0 - tol));
+                        let mut up = gain_at_g(v, c.g_lo_up, c.gds_hi, x_up, cmb, 1.0 - tol).0;
+                        let mut dn = gain_at_g(v, c.g_hi_dn, c.gds_lo, x_dn, cmb, 1.0 + tol).0;
+                        if both_gds {
+                            // |gain| is monotone in gds (a ratio of linear
+                            // terms) but its direction is not known here.
+                            up = up.min(gain_at_g(v, c.g_lo_up, c.gds_lo, x_up, cmb, 1.0 - tol).0);
+                            dn = dn.max(gain_at_g(v, c.g_hi_dn, c.gds_hi, x_dn, cmb, 1.0 + tol).0);
+                        }
+                        lb_i = lb_i.min(up);
+                        ub_i = ub_i.max(dn);
+                    }
+                    strong = strong.max(lb_i * zin_factor);
+                    weak = weak.min(ub_i);
+                }
+                (strong, weak)
+            };
+            let bound = scan_rd(
+                self.rd_values,
+                (lo, hi),
+                g_target,
+                rd_cap,
+                single,
+                &mut gains,
+                &rd_metrics,
+                |m| score(s, m, self.prefer),
+            );
+            match bound {
+                Some(b) => at_rd = Some(b),
+                None => return None,
             }
         }
         if at_rd.is_some() {

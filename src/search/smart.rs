@@ -80,30 +80,34 @@ struct Axis {
     /// range spans the most of it, not the most options.
     scale: Vec<f64>,
     /// For a divider that sets Zin: the parallel resistance of each option
-    /// and its maxima over blocks of [`BLOCK`] options (range maxima for
-    /// the Zin bound of a box).
-    zin: Option<(Vec<f64>, Vec<f64>)>,
+    /// and its extremes over blocks of [`BLOCK`] options (range extremes
+    /// for the Zin bounds of a box).
+    zin: Option<(Vec<f64>, Vec<(f64, f64)>)>,
 }
 
 /// Block length of the range-maximum table.
 const BLOCK: usize = 64;
 
 impl Axis {
-    /// Largest Zin over the options `s..e` (None when Zin is not set here).
-    fn zin_max(&self, s: usize, e: usize) -> Option<f64> {
+    /// Smallest and largest Zin over the options `s..e` (None when Zin is
+    /// not set here).
+    fn zin_range(&self, s: usize, e: usize) -> Option<(f64, f64)> {
         let (z, blocks) = self.zin.as_ref()?;
-        let mut m: f64 = 0.0;
+        let (mut lo, mut hi) = (f64::INFINITY, 0.0f64);
         let mut i = s;
         while i < e {
             if i % BLOCK == 0 && i + BLOCK <= e {
-                m = m.max(blocks[i / BLOCK]);
+                let (a, b) = blocks[i / BLOCK];
+                lo = lo.min(a);
+                hi = hi.max(b);
                 i += BLOCK;
             } else {
-                m = m.max(z[i]);
+                lo = lo.min(z[i]);
+                hi = hi.max(z[i]);
                 i += 1;
             }
         }
-        Some(m)
+        Some((lo, hi))
     }
 }
 
@@ -547,13 +551,42 @@ impl Bounds<'_> {
         {
             return None;
         }
-        let zin_ratio = axes
+        // The nominal Zin range of the box where the divider (Zin = R1∥R2)
+        // or a gate resistor (Zin = RG, fixed for the whole box) sets it.
+        let zin_nominal = axes
             .iter()
             .zip(ranges)
-            .find_map(|(a, r)| a.zin_max(r.0, r.1))
-            // Zin is at most R1∥R2, and both at their low extreme is a
-            // point of every candidate's envelope.
-            .map_or(f64::INFINITY, |z| z * (1.0 - self.tol) / s.zin_min_ohm);
+            .find_map(|(a, r)| a.zin_range(r.0, r.1))
+            .or_else(|| {
+                if t.input_at_source() {
+                    return None;
+                }
+                let rg = self
+                    .roles
+                    .iter()
+                    .zip(v.iter())
+                    .filter(|(r, _)| **r == Role::Gate)
+                    .map(|(_, &rg)| rg)
+                    .fold(f64::INFINITY, f64::min);
+                rg.is_finite().then_some((rg, rg))
+            });
+        // Every resistor at its low extreme is a point of every candidate's
+        // envelope: the worst-case Zin is at most the largest times (1 − t).
+        let zin_ratio =
+            zin_nominal.map_or(f64::INFINITY, |z| z.1 * (1.0 - self.tol) / s.zin_min_ohm);
+        // The share of the source EMF that reaches the gate, Zin/(Zin +
+        // Rsig), at any tolerance extreme of any candidate: at least with
+        // Zin at its floor (a feasible candidate's is at least zin_min),
+        // at most with Zin at its ceiling.
+        let rsig = s.source_resistance_ohm;
+        let share = |z: f64| if rsig > 0.0 { z / (z + rsig) } else { 1.0 };
+        let (share_lo, share_hi) = match zin_nominal {
+            Some((lo, hi)) => (
+                share((lo * (1.0 - self.tol_max)).max(s.zin_min_ohm)),
+                share(hi * (1.0 + self.tol_max)),
+            ),
+            None => (share(s.zin_min_ohm), 1.0),
+        };
         // Gain bounds: |gain| rises with gm and RD and is monotone in each
         // source resistor, so the extremes of the source axes bound it.
         // (A bypassed source resistor never enters the gain: no extremes.)
@@ -594,8 +627,10 @@ impl Bounds<'_> {
         // common gate alike): then the drain resistor can be scanned over
         // the shelf below (`RdScan`). Checked here rather than assumed.
         let rl = s.rl_ohm;
-        let spread_free =
-            self.lambda_free && (s.source_resistance_ohm == 0.0 || !t.input_at_source());
+        // (Without a drain resistor, a follower, the gain bounds below also
+        // hold with λ > 0, gds taken at its extremes.)
+        let spread_free = (self.lambda_free || self.rd.is_none())
+            && (s.source_resistance_ohm == 0.0 || !t.input_at_source());
         // Where Zout is RD itself (gds = 0), zout_max caps RD at its
         // upper tolerance extreme.
         let mut zout_cap = f64::INFINITY;
@@ -618,7 +653,7 @@ impl Bounds<'_> {
         let scanned = scan || lambda_scan;
         // The level at the largest RD (the scan's window implies it) and
         // the Zin of a common-gate input.
-        let need_zin = t.input_at_source() && self.lambda_free;
+        let need_zin = t.input_at_source();
         let mut min_ub = f64::INFINITY;
         let mut zin_ub_min = f64::INFINITY;
         if !scanned || need_zin {
@@ -629,8 +664,16 @@ impl Bounds<'_> {
                     if !scanned {
                         ub = ub.max(gain_at(v, c.g_hi, rd_best, cmb).0);
                     }
-                    if need_zin {
+                    if need_zin && self.lambda_free {
                         zin_ub = zin_ub.max(gain_at(v, c.g_lo, rd_best, cmb).1);
+                    } else if need_zin {
+                        // With gds > 0 Zin rises with RD∥RL too (RD up at
+                        // most its cap times 1 + t) and is monotone in gds:
+                        // both ends of its range.
+                        let rd_up = rd_best * (1.0 + self.tol_max);
+                        for gds in [c.gds_lo, c.gds_hi] {
+                            zin_ub = zin_ub.max(gain_at_g(v, c.g_lo, gds, rd_up, cmb, 1.0).1);
+                        }
                     }
                 }
                 if !scanned {
@@ -696,15 +739,22 @@ impl Bounds<'_> {
             for c in w.iter() {
                 let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
                 for cmb in 0..combos {
-                    lb_i = lb_i.min(gain_at_m(v, c.g_lo_up, rd_ref, cmb, 1.0 - self.tol).0);
-                    ub_i = ub_i.max(gain_at_m(v, c.g_hi_dn, rd_ref, cmb, 1.0 + self.tol).0);
+                    let (dn, up) = (1.0 - self.tol, 1.0 + self.tol);
+                    if self.lambda_free {
+                        lb_i = lb_i.min(gain_at_m(v, c.g_lo_up, rd_ref, cmb, dn).0);
+                        ub_i = ub_i.max(gain_at_m(v, c.g_hi_dn, rd_ref, cmb, up).0);
+                    } else {
+                        // |gain| is monotone in gds: both ends of its range.
+                        for gds in [c.gds_lo, c.gds_hi] {
+                            lb_i = lb_i.min(gain_at_g(v, c.g_lo_up, gds, rd_ref, cmb, dn).0);
+                            ub_i = ub_i.max(gain_at_g(v, c.g_hi_dn, gds, rd_ref, cmb, up).0);
+                        }
+                    }
                 }
                 // With a source resistance the gain from the EMF is av times
-                // Zin/(Zin + Rsig) >= zin_min/(zin_min + Rsig) for any
-                // feasible point: a valid lower bound needs that factor.
-                let rsig = s.source_resistance_ohm;
-                max_lb = max_lb.max(lb_i * s.zin_min_ohm / (s.zin_min_ohm + rsig));
-                min_ub2 = min_ub2.min(ub_i);
+                // Zin/(Zin + Rsig), which lies between the shares above.
+                max_lb = max_lb.max(lb_i * share_lo);
+                min_ub2 = min_ub2.min(ub_i * share_hi);
             }
             let rd_part = if self.rd.is_some() {
                 rd_ratio(rd_best, s.rl_ohm, self.tol)
@@ -753,8 +803,6 @@ impl Bounds<'_> {
             // candidate the current-raising tolerance extreme reaches at
             // least the gain with (gm floor, gds ceiling) and the other
             // extreme at most the gain with (gm ceiling, gds floor).
-            let rsig = s.source_resistance_ohm;
-            let zin_factor = s.zin_min_ohm / (s.zin_min_ohm + rsig);
             let tol = self.tol;
             // A common-source stage loses |gain| to gds; elsewhere both
             // ends of the gds range are taken.
@@ -776,8 +824,8 @@ impl Bounds<'_> {
                         lb_i = lb_i.min(up);
                         ub_i = ub_i.max(dn);
                     }
-                    strong = strong.max(lb_i * zin_factor);
-                    weak = weak.min(ub_i);
+                    strong = strong.max(lb_i * share_lo);
+                    weak = weak.min(ub_i * share_hi);
                 }
                 (strong, weak)
             };
@@ -1123,7 +1171,10 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
                 .collect();
             let blocks = z
                 .chunks(BLOCK)
-                .map(|c| c.iter().copied().fold(0.0, f64::max))
+                .map(|c| {
+                    c.iter()
+                        .fold((f64::INFINITY, 0.0f64), |(l, h), &x| (l.min(x), h.max(x)))
+                })
                 .collect();
             (z, blocks)
         });

@@ -82,8 +82,11 @@ struct Axis {
     /// For a divider that sets Zin: the parallel resistance of each option
     /// and its extremes over blocks of [`BLOCK`] options (range extremes
     /// for the Zin bounds of a box).
-    zin: Option<(Vec<f64>, Vec<(f64, f64)>)>,
+    zin: Option<ZinTable>,
 }
+
+/// Zin of each option with its (min, max) over blocks of [`BLOCK`].
+type ZinTable = (Vec<f64>, Vec<(f64, f64)>);
 
 /// Block length of the range-maximum table.
 const BLOCK: usize = 64;

@@ -8,9 +8,12 @@
 //!    implicit differentiation of the bias equation; see DEVELOPERS.md), so
 //!    solves at the box's extreme points bound every corner's current, gm
 //!    and source voltage over the whole box, at every device corner and
-//!    supply extreme. With λ = 0 the bound also scans the drain resistor
-//!    over the shelf (|gain| is proportional to RD∥RL there), so the gain
-//!    error, spread and headroom are bounded together for each standard RD.
+//!    supply extreme, with the floors and ceilings taken at resistor
+//!    tolerance extremes that lie in every candidate's envelope. The bound
+//!    also scans the drain resistor over the shelf (with λ = 0 |gain| is
+//!    proportional to RD∥RL; with λ > 0 gm and gds are taken at their
+//!    extremes), so the gain error, spread and headroom are bounded
+//!    together for each standard RD.
 //!    A box whose bounds break a requirement, or whose score bound is below
 //!    the entry threshold, is dropped; the others wait in a queue, best
 //!    bound first, and are split until single configurations.
@@ -18,9 +21,9 @@
 //!    pairs with the same ratio are reduced to the largest placement (same
 //!    bias, more Zin, less current) unless a source resistance makes Zin
 //!    enter the gain.
-//! 3. A single configuration takes the RD window of its bound (or, with
-//!    λ > 0, the run of RD values that passes the nominal checks, found by
-//!    two binary searches inside the saturated range).
+//! 3. A single configuration takes the RD window of its bound (or, where
+//!    the RD is not scanned, the run of RD values that passes the nominal
+//!    checks, found by two binary searches inside the saturated range).
 //! 4. Each RD there is checked at nominal resistor values, screened at two
 //!    tolerance extremes, and checked exactly over all corners, tolerance
 //!    and supply extremes; only that full check decides what is reported.
@@ -628,7 +631,7 @@ impl Bounds<'_> {
         // With λ = 0 (gds = 0) and no source resistance inside the gain,
         // |av| is proportional to RD∥RL at a fixed gm (common source and
         // common gate alike): then the drain resistor can be scanned over
-        // the shelf below (`RdScan`). Checked here rather than assumed.
+        // the shelf below (`scan_rd`). Checked here rather than assumed.
         let rl = s.rl_ohm;
         // (Without a drain resistor, a follower, the gain bounds below also
         // hold with λ > 0, gds taken at its extremes.)

@@ -346,25 +346,23 @@ struct Bounds<'a> {
     work: std::cell::RefCell<Vec<PerCase>>,
 }
 
-/// Saturation current, VGS, VS and gm at a point with RD = 0 (the drain at
-/// its rail), for a folded law.
+/// Saturation current, VGS, VS and gm at a point with the drain far above
+/// everything (RD = 0 and a drain-fed gate fixed at the drain rail), for a
+/// folded law: the current at every saturated point.
 fn bias_at(t: &dyn Topology, v: &[f64], rails: &Rails, law: &SquareLaw) -> (f64, f64, f64, f64) {
-    // The drain far above everything: the pure saturation root of the
-    // folded law, which is the current at every saturated point.
     let mut net = t.bias(v, rails);
     net.rd_ohm = 0.0;
     if let Gate::FromDrain = net.gate {
         net.gate = Gate::Fixed(net.drain_rail_v);
     }
-    net.drain_rail_v = 1e15;
-    let op = net.solve(law);
-    let vov = op.vgs_v - law.vto_v;
+    let (id, vgs, vs) = net.saturation(law);
+    let vov = vgs - law.vto_v;
     let gm = if vov > 0.0 {
         2.0 * law.k_a_per_v2 * vov
     } else {
         0.0
     };
-    (op.id_a, op.vgs_v, op.vs_v, gm)
+    (id, vgs, vs, gm)
 }
 
 impl Bounds<'_> {
@@ -507,6 +505,13 @@ impl Bounds<'_> {
             tilted(v, &low_vs, vs_src);
             for (i, c) in cases.iter().enumerate() {
                 w[i].vs_at[j] = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).2;
+            }
+            if j == 0 {
+                // The point of `id_up` (the same shift).
+                for c in w.iter_mut() {
+                    c.id_at[0] = c.id_up;
+                }
+                continue;
             }
             tilted(v, &low_id, id_src);
             for (i, c) in cases.iter().enumerate() {

@@ -119,6 +119,24 @@ impl BiasNetwork {
         }
     }
 
+    /// Drain current, VGS and VS, amps and volts, at the saturation root of
+    /// a λ = 0 law (`law.lambda_per_v` is ignored): the operating point
+    /// wherever the drain sits high enough to keep the device saturated.
+    /// The same root as [`BiasNetwork::solve`] takes in saturation.
+    pub fn saturation(&self, law: &SquareLaw) -> (f64, f64, f64) {
+        let (a, b, _, _) = self.line();
+        let k = law.k_a_per_v2;
+        let u = a - law.vto_v;
+        let id = if u <= 0.0 || k <= 0.0 {
+            0.0
+        } else if b == 0.0 {
+            k * u * u
+        } else {
+            small_root(k * b * b, 2.0 * k * u * b + 1.0, k * u * u)
+        };
+        (id, a - b * id, self.source_rail_v + self.rs_ohm * id)
+    }
+
     /// The operating point for the given device.
     ///
     /// With λ = 0 this is the closed form: along the bias line both the
@@ -419,6 +437,12 @@ mod tests {
         assert!((op.vgs_v + 2.0).abs() < 1e-12);
         assert!((op.vds_v - 9.0).abs() < 1e-12);
         assert!(op.saturated());
+        // The saturation-only root gives the same point (the search's box
+        // bound uses it).
+        let (id, vgs, vs) = net.saturation(&law(-4.0, 8e-3 / 16.0, 0.0));
+        assert!((id - 2e-3).abs() < 1e-15);
+        assert!((vgs + 2.0).abs() < 1e-12);
+        assert!((vs - 2.0).abs() < 1e-12);
     }
 
     // Divider check from Boylestad-style worked example (values of our own,

@@ -815,6 +815,23 @@ impl Bounds<'_> {
             // least the gain with (gm floor, gds ceiling) and the other
             // extreme at most the gain with (gm ceiling, gds floor).
             let tol = self.tol;
+            // Where Zout is RD itself at gds = 0 it is RD∥(something at least
+            // 1/gds) otherwise, so at the current-raising extreme Zout is at
+            // least RD(1 + t)∥(1/gds ceiling): zout_max caps RD there too.
+            let mut zout_cap = f64::INFINITY;
+            if let Some(zm) = s.limits.zout_max_ohm {
+                let r0 = self.r_min;
+                let z = gain_at_g(v, w[0].g_hi_dn, 0.0, r0, 0, 1.0).2;
+                if ((z / r0) - 1.0).abs() < 1e-12 {
+                    let zm = zm * (1.0 + SLACK);
+                    for c in w.iter() {
+                        let room = 1.0 / zm - c.gds_hi;
+                        if room > 0.0 {
+                            zout_cap = zout_cap.min(1.0 / room / (1.0 + tol));
+                        }
+                    }
+                }
+            }
             // A common-source stage loses |gain| to gds; elsewhere both
             // ends of the gds range are taken.
             let both_gds = t.input_at_source();
@@ -844,7 +861,7 @@ impl Bounds<'_> {
                 self.rd_values,
                 (lo, hi),
                 g_target,
-                rd_cap,
+                rd_cap.min(zout_cap),
                 single,
                 &mut gains,
                 &rd_metrics,

@@ -129,10 +129,8 @@ impl BiasNetwork {
         let u = a - law.vto_v;
         let id = if u <= 0.0 || k <= 0.0 {
             0.0
-        } else if b == 0.0 {
-            k * u * u
         } else {
-            small_root(k * b * b, 2.0 * k * u * b + 1.0, k * u * u)
+            saturation_root(k, u, b)
         };
         (id, a - b * id, self.source_rail_v + self.rs_ohm * id)
     }
@@ -194,16 +192,21 @@ fn small_root(a2: f64, b1: f64, c0: f64) -> f64 {
     }
 }
 
-/// λ = 0 operating current along `VGS = vto + u − b·ID`, `VDS = c − d·ID`.
-fn closed_form(k: f64, u: f64, b: f64, c: f64, d: f64) -> f64 {
-    // Saturation: ID = k (u − b ID)²  ⇔  k b² ID² − (2kub + 1) ID + k u² = 0.
-    // The physical root keeps u − b·ID >= 0, which is the smaller one; with
-    // b = 0 the law is explicit.
-    let id_sat = if b == 0.0 {
+/// The saturation root along `VGS = vto + u − b·ID` (λ = 0), amps:
+/// ID = k (u − b ID)²  ⇔  k b² ID² − (2kub + 1) ID + k u² = 0. The physical
+/// root keeps u − b·ID >= 0, which is the smaller one; with b = 0 the law
+/// is explicit.
+fn saturation_root(k: f64, u: f64, b: f64) -> f64 {
+    if b == 0.0 {
         k * u * u
     } else {
         small_root(k * b * b, 2.0 * k * u * b + 1.0, k * u * u)
-    };
+    }
+}
+
+/// λ = 0 operating current along `VGS = vto + u − b·ID`, `VDS = c − d·ID`.
+fn closed_form(k: f64, u: f64, b: f64, c: f64, d: f64) -> f64 {
+    let id_sat = saturation_root(k, u, b);
     let vov = u - b * id_sat;
     let vds = c - d * id_sat;
     if vds >= vov {

@@ -142,17 +142,28 @@ fn folded(law: &SquareLaw, vds_v: f64) -> SquareLaw {
     }
 }
 
+/// Move the bias resistors: the divider tap up by `tap` (R_top times
+/// 1 − tap, R_bottom times 1 + tap; a negative `tap` moves it down) and
+/// every source resistor times `src`.
+fn tilt(v: &mut [f64], roles: &[Role], tap: f64, src: f64) {
+    for (x, r) in v.iter_mut().zip(roles) {
+        match r {
+            Role::DivTop => *x *= 1.0 - tap,
+            Role::DivBottom => *x *= 1.0 + tap,
+            Role::Source => *x *= src,
+            _ => {}
+        }
+    }
+}
+
 /// Move every bias resistor to the tolerance extreme that raises (`up`) or
 /// lowers the drain current: the divider tap up or down, the source
 /// resistors down or up.
 fn shift(v: &mut [f64], roles: &[Role], tol: f64, up: bool) {
-    let (dn, upm) = (1.0 - tol, 1.0 + tol);
-    for (x, r) in v.iter_mut().zip(roles) {
-        match r {
-            Role::DivTop | Role::Source => *x *= if up { dn } else { upm },
-            Role::DivBottom => *x *= if up { upm } else { dn },
-            _ => {}
-        }
+    if up {
+        tilt(v, roles, tol, 1.0 - tol);
+    } else {
+        tilt(v, roles, -tol, 1.0 + tol);
     }
 }
 
@@ -503,14 +514,7 @@ impl Bounds<'_> {
         // candidate's tap goes.
         let tilted = |v: &mut [f64], pick: &dyn Fn(&Axis, (usize, usize)) -> usize, src: f64| {
             set(v, pick);
-            for (x, r) in v.iter_mut().zip(self.roles) {
-                match r {
-                    Role::DivTop => *x *= 1.0 - self.tol,
-                    Role::DivBottom => *x *= 1.0 + self.tol,
-                    Role::Source => *x *= src,
-                    _ => {}
-                }
-            }
+            tilt(v, self.roles, self.tol, src);
         };
         let points = [
             (1.0 - self.tol_max, 1.0 - self.tol),

@@ -563,7 +563,6 @@ impl Bounds<'_> {
             return None;
         }
         let rd_floor = if self.rd.is_some() { self.r_min } else { 0.0 };
-        #[allow(unused_mut)]
         let mut headroom_ub = f64::INFINITY;
         // The worst-case power is at least the power of any one corner, so
         // the largest of the per-corner current floors bounds it.
@@ -661,18 +660,27 @@ impl Bounds<'_> {
         // hold with λ > 0, gds taken at its extremes.)
         let spread_free = (self.lambda_free || self.rd.is_none())
             && (s.source_resistance_ohm == 0.0 || !t.input_at_source());
-        // Where Zout is RD itself (gds = 0), zout_max caps RD at its
-        // upper tolerance extreme.
+        // Where Zout is RD itself at gds = 0 it is RD∥(something at least
+        // 1/gds) otherwise, so at the current-raising extreme Zout is at
+        // least RD(1 + t)∥(1/gds ceiling) (that ceiling is 0 with λ = 0):
+        // zout_max caps RD there, RD(1 + t) <= zout_max/(1 − zout_max·gds).
         let mut zout_cap = f64::INFINITY;
-        let scan = spread_free && self.rd.is_some() && w[0].g_hi_dn > 0.0 && {
+        if let (Some(zm), Some(_)) = (s.limits.zout_max_ohm, self.rd) {
             let r0 = self.r_min;
-            let (a, _, z) = gain_at_m(v, w[0].g_hi_dn, r0, 0, 1.0);
-            let b = gain_at_m(v, w[0].g_hi_dn, 2.0 * r0, 0, 1.0).0;
-            if let Some(zm) = s.limits.zout_max_ohm {
-                if ((z / r0) - 1.0).abs() < 1e-12 {
-                    zout_cap = zm * (1.0 + SLACK) / (1.0 + self.tol);
+            let z = gain_at_m(v, w[0].g_hi_dn, r0, 0, 1.0).2;
+            if ((z / r0) - 1.0).abs() < 1e-12 {
+                let zm = zm * (1.0 + SLACK);
+                for c in w.iter() {
+                    if zm * c.gds_hi < 1.0 {
+                        zout_cap = zout_cap.min(zm / (1.0 - zm * c.gds_hi) / (1.0 + self.tol));
+                    }
                 }
             }
+        }
+        let scan = spread_free && self.rd.is_some() && w[0].g_hi_dn > 0.0 && {
+            let r0 = self.r_min;
+            let a = gain_at_m(v, w[0].g_hi_dn, r0, 0, 1.0).0;
+            let b = gain_at_m(v, w[0].g_hi_dn, 2.0 * r0, 0, 1.0).0;
             a > 0.0 && ((b / a) / (par2(2.0 * r0, rl) / par2(r0, rl)) - 1.0).abs() < 1e-9
         };
         // With λ > 0 there is no proportionality, but the drain resistor is
@@ -834,23 +842,6 @@ impl Bounds<'_> {
             // least the gain with (gm floor, gds ceiling) and the other
             // extreme at most the gain with (gm ceiling, gds floor).
             let tol = self.tol;
-            // Where Zout is RD itself at gds = 0 it is RD∥(something at least
-            // 1/gds) otherwise, so at the current-raising extreme Zout is at
-            // least RD(1 + t)∥(1/gds ceiling): zout_max caps RD there too.
-            let mut zout_cap = f64::INFINITY;
-            if let Some(zm) = s.limits.zout_max_ohm {
-                let r0 = self.r_min;
-                let z = gain_at_g(v, w[0].g_hi_dn, 0.0, r0, 0, 1.0).2;
-                if ((z / r0) - 1.0).abs() < 1e-12 {
-                    let zm = zm * (1.0 + SLACK);
-                    for c in w.iter() {
-                        let room = 1.0 / zm - c.gds_hi;
-                        if room > 0.0 {
-                            zout_cap = zout_cap.min(1.0 / room / (1.0 + tol));
-                        }
-                    }
-                }
-            }
             // A common-source stage loses |gain| to gds; elsewhere both
             // ends of the gds range are taken.
             let both_gds = t.input_at_source();

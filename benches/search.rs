@@ -20,7 +20,9 @@ fn example_text(name: &str) -> String {
 /// An example with channel-length modulation λ = 0.02 /V added to its
 /// device (the search's slower path: the operating point moves with RD).
 fn load_with_lambda(name: &str) -> ValidSpec {
-    let text = example_text(name).replacen("[device]\n", "[device]\nlambda = 0.02\n", 1);
+    let text = example_text(name);
+    assert!(text.contains("[device]\n"), "{name} has no [device] table");
+    let text = text.replacen("[device]\n", "[device]\nlambda = 0.02\n", 1);
     gatewright::spec::parse(&text).expect("valid example with lambda")
 }
 

@@ -111,7 +111,15 @@ pub fn score(spec: &ValidSpec, m: &Metrics, prefer: Prefer) -> f64 {
         clamp(1.0 - m.gain_spread / (2.0 * tol)),
         clamp(m.headroom_v / (0.25 * span)),
         clamp(1.0 / (1.0 + m.power_w / p_ref)),
-        clamp(m.zin_ratio.log10()),
+        // (log10 is 1 at 10 and 0 at 1: the clamp needs no logarithm
+        // outside, and the search asks for this term very often.)
+        if m.zin_ratio >= 10.0 {
+            1.0
+        } else if m.zin_ratio <= 1.0 {
+            0.0
+        } else {
+            m.zin_ratio.log10()
+        },
         clamp((9.0 - m.parts as f64) / 5.0),
     ];
     let mut w = [2.0, 2.0, 1.0, 1.0, 1.0, 1.0];

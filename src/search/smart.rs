@@ -293,6 +293,29 @@ fn scan_rd(
     })
 }
 
+/// Source points (combinations of the options of the source axes inside
+/// the gain) up to which a box bounds each on its own.
+const SOURCE_POINTS: usize = 16;
+
+/// The better of two bounds of parts of one box: the metrics of the one
+/// with the higher score, the drain resistor window spanning both.
+fn best_of(acc: Option<Bound>, b: Bound, score_of: impl Fn(&Metrics) -> f64) -> Option<Bound> {
+    let Some(a) = acc else {
+        return Some(b);
+    };
+    let window = match (a.rd_window, b.rd_window) {
+        (Some(x), Some(y)) => Some((x.0.min(y.0), x.1.max(y.1))),
+        (x, y) => x.or(y),
+    };
+    let mut keep = if score_of(&b.metrics) > score_of(&a.metrics) {
+        b
+    } else {
+        a
+    };
+    keep.rd_window = window;
+    Some(keep)
+}
+
 /// The bound of one box.
 struct Bound {
     /// Optimistic metrics: no point of the box does better on any of them.
@@ -620,15 +643,25 @@ impl Bounds<'_> {
         // source resistor, so the extremes of the source axes bound it.
         // (A bypassed source resistor never enters the gain: no extremes.)
         let src_axes = &self.src_axes;
-        let combos = 1usize << src_axes.len();
-        let gain_at_g = |v: &mut [f64], gm: f64, gds: f64, rd: f64, combo: usize, mult: f64| {
-            for (bit, &ai) in src_axes.iter().enumerate() {
-                let r = ranges[ai];
-                let j = if combo & (1 << bit) != 0 {
-                    r.1 - 1
-                } else {
-                    r.0
-                };
+        // A point of the source axes: one option index per axis.
+        let extremes: Vec<Vec<usize>> = (0..1usize << src_axes.len())
+            .map(|combo| {
+                src_axes
+                    .iter()
+                    .enumerate()
+                    .map(|(bit, &ai)| {
+                        let r = ranges[ai];
+                        if combo & (1 << bit) != 0 {
+                            r.1 - 1
+                        } else {
+                            r.0
+                        }
+                    })
+                    .collect()
+            })
+            .collect();
+        let gain_at_g = |v: &mut [f64], gm: f64, gds: f64, rd: f64, pick: &[usize], mult: f64| {
+            for (&ai, &j) in src_axes.iter().zip(pick) {
                 for (k, &pos) in axes[ai].positions.iter().enumerate() {
                     v[pos] = axes[ai].options[j][k] * mult;
                 }
@@ -645,11 +678,39 @@ impl Bounds<'_> {
             let ss = t.small_signal(v, &ctx);
             (ss.av.abs(), ss.zin_ohm, ss.zout_ohm)
         };
-        let gain_at_m = |v: &mut [f64], gm: f64, rd: f64, combo: usize, mult: f64| {
-            gain_at_g(v, gm, 0.0, rd, combo, mult)
+        let gain_at_m = |v: &mut [f64], gm: f64, rd: f64, pick: &[usize], mult: f64| {
+            gain_at_g(v, gm, 0.0, rd, pick, mult)
         };
         let gain_at =
-            |v: &mut [f64], gm: f64, rd: f64, combo: usize| gain_at_m(v, gm, rd, combo, 1.0);
+            |v: &mut [f64], gm: f64, rd: f64, pick: &[usize]| gain_at_m(v, gm, rd, pick, 1.0);
+        // The strong and the weak side of the gain move opposite ways along
+        // a source axis inside the gain, so taking each at its own extreme
+        // of the box is loose by a whole step of the axis. Where the box
+        // holds few such points, each is bounded on its own (every
+        // candidate has one of them), and the bound is the best of those.
+        let points: usize = src_axes
+            .iter()
+            .map(|&ai| ranges[ai].1 - ranges[ai].0)
+            .product();
+        let groups: Vec<Vec<Vec<usize>>> = if points > 1 && points <= SOURCE_POINTS {
+            let mut all: Vec<Vec<usize>> = vec![Vec::new()];
+            for &ai in src_axes {
+                let r = ranges[ai];
+                all = all
+                    .into_iter()
+                    .flat_map(|p| {
+                        (r.0..r.1).map(move |j| {
+                            let mut q = p.clone();
+                            q.push(j);
+                            q
+                        })
+                    })
+                    .collect();
+            }
+            all.into_iter().map(|p| vec![p]).collect()
+        } else {
+            vec![extremes.clone()]
+        };
         let rd_best = rd_cap.min(self.r_max);
         // With λ = 0 (gds = 0) and no source resistance inside the gain,
         // |av| is proportional to RD∥RL at a fixed gm (common source and
@@ -667,7 +728,7 @@ impl Bounds<'_> {
         let mut zout_cap = f64::INFINITY;
         if let (Some(zm), Some(_)) = (s.limits.zout_max_ohm, self.rd) {
             let r0 = self.r_min;
-            let z = gain_at_m(v, w[0].g_hi_dn, r0, 0, 1.0).2;
+            let z = gain_at_m(v, w[0].g_hi_dn, r0, &extremes[0], 1.0).2;
             if ((z / r0) - 1.0).abs() < 1e-12 {
                 let zm = zm * (1.0 + SLACK);
                 for c in w.iter() {
@@ -679,8 +740,8 @@ impl Bounds<'_> {
         }
         let scan = spread_free && self.rd.is_some() && w[0].g_hi_dn > 0.0 && {
             let r0 = self.r_min;
-            let a = gain_at_m(v, w[0].g_hi_dn, r0, 0, 1.0).0;
-            let b = gain_at_m(v, w[0].g_hi_dn, 2.0 * r0, 0, 1.0).0;
+            let a = gain_at_m(v, w[0].g_hi_dn, r0, &extremes[0], 1.0).0;
+            let b = gain_at_m(v, w[0].g_hi_dn, 2.0 * r0, &extremes[0], 1.0).0;
             a > 0.0 && ((b / a) / (par2(2.0 * r0, rl) / par2(r0, rl)) - 1.0).abs() < 1e-9
         };
         // With λ > 0 there is no proportionality, but the drain resistor is
@@ -698,7 +759,7 @@ impl Bounds<'_> {
             for c in w.iter() {
                 let mut ub: f64 = 0.0;
                 let mut zin_ub: f64 = 0.0;
-                for cmb in 0..combos {
+                for cmb in &extremes {
                     if !scanned {
                         ub = ub.max(gain_at(v, c.g_hi, rd_best, cmb).0);
                     }
@@ -728,7 +789,9 @@ impl Bounds<'_> {
         if self.rd.is_some() && !scanned {
             let reach = |v: &mut [f64], rd: f64| {
                 (0..n).all(|i| {
-                    (0..combos).any(|cmb| gain_at(v, w[i].g_hi, rd, cmb).0 >= lo * (1.0 - SLACK))
+                    extremes
+                        .iter()
+                        .any(|cmb| gain_at(v, w[i].g_hi, rd, cmb).0 >= lo * (1.0 - SLACK))
                 })
             };
             let rd_need = smallest_reaching(self.r_min, rd_best, 12, 1e-4, |x| reach(v, x));
@@ -772,66 +835,83 @@ impl Bounds<'_> {
         };
         if spread_free {
             let rd_ref = self.r_min;
-            let mut max_lb: f64 = 0.0;
-            let mut min_ub2 = f64::INFINITY;
-            for c in w.iter() {
-                let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
-                for cmb in 0..combos {
-                    let (dn, up) = (1.0 - self.tol, 1.0 + self.tol);
-                    if self.lambda_free {
-                        lb_i = lb_i.min(gain_at_m(v, c.g_lo_up, rd_ref, cmb, dn).0);
-                        ub_i = ub_i.max(gain_at_m(v, c.g_hi_dn, rd_ref, cmb, up).0);
-                    } else {
-                        // |gain| is monotone in gds: both ends of its range.
-                        for gds in [c.gds_lo, c.gds_hi] {
-                            lb_i = lb_i.min(gain_at_g(v, c.g_lo_up, gds, rd_ref, cmb, dn).0);
-                            ub_i = ub_i.max(gain_at_g(v, c.g_hi_dn, gds, rd_ref, cmb, up).0);
-                        }
-                    }
-                }
-                // With a source resistance the gain from the EMF is av times
-                // Zin/(Zin + Rsig), which lies between the shares above.
-                max_lb = max_lb.max(lb_i * share_lo);
-                min_ub2 = min_ub2.min(ub_i * share_hi);
-            }
             let rd_part = if self.rd.is_some() {
                 rd_ratio(rd_best, s.rl_ohm, self.tol)
             } else {
                 1.0
             };
-            if max_lb * lo * rd_part > hi * min_ub2 * (1.0 + SLACK) {
-                return None;
-            }
-            if min_ub2 > 0.0 {
-                ratio = (max_lb / min_ub2).max(1.0) * rd_part;
-            }
-            // ... and every point reaches at least `max_lb` at its strongest.
-            level_error = level_error.max((max_lb - g_target) / g_target);
-            if self.rd.is_none() && max_lb > hi * (1.0 + SLACK) {
-                return None;
-            }
-            if scan {
-                let unit = par2(rd_ref, rl);
-                let model = Proportional {
-                    strong: max_lb / unit,
-                    weak: min_ub2 / unit,
-                    tol: self.tol,
-                    rl,
-                };
-                match scan_rd(
-                    self.rd_values,
-                    (lo, hi),
-                    g_target,
-                    rd_cap.min(zout_cap),
-                    single,
-                    |x| model.gains(x),
-                    |x, err, spread| rd_metrics(x, err.max(level_error), spread),
-                    |m| score(s, m, self.prefer),
-                ) {
-                    Some(b) => at_rd = Some(b),
-                    None => return None,
+            // Over the groups: the smallest ratio and level error, the best
+            // RD bound (a group no point of which can work drops out).
+            let (mut ratio_min, mut level_min) = (f64::INFINITY, f64::INFINITY);
+            let mut any = false;
+            for group in &groups {
+                let mut max_lb: f64 = 0.0;
+                let mut min_ub2 = f64::INFINITY;
+                for c in w.iter() {
+                    let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
+                    for cmb in group {
+                        let (dn, up) = (1.0 - self.tol, 1.0 + self.tol);
+                        if self.lambda_free {
+                            lb_i = lb_i.min(gain_at_m(v, c.g_lo_up, rd_ref, cmb, dn).0);
+                            ub_i = ub_i.max(gain_at_m(v, c.g_hi_dn, rd_ref, cmb, up).0);
+                        } else {
+                            // |gain| is monotone in gds: both ends of its range.
+                            for gds in [c.gds_lo, c.gds_hi] {
+                                lb_i = lb_i.min(gain_at_g(v, c.g_lo_up, gds, rd_ref, cmb, dn).0);
+                                ub_i = ub_i.max(gain_at_g(v, c.g_hi_dn, gds, rd_ref, cmb, up).0);
+                            }
+                        }
+                    }
+                    // With a source resistance the gain from the EMF is av
+                    // times Zin/(Zin + Rsig), which lies between the shares
+                    // above.
+                    max_lb = max_lb.max(lb_i * share_lo);
+                    min_ub2 = min_ub2.min(ub_i * share_hi);
                 }
+                if max_lb * lo * rd_part > hi * min_ub2 * (1.0 + SLACK) {
+                    continue;
+                }
+                // ... and every point reaches at least `max_lb` at its
+                // strongest.
+                let level_g = level_error.max((max_lb - g_target) / g_target);
+                if self.rd.is_none() && max_lb > hi * (1.0 + SLACK) {
+                    continue;
+                }
+                if scan {
+                    let unit = par2(rd_ref, rl);
+                    let model = Proportional {
+                        strong: max_lb / unit,
+                        weak: min_ub2 / unit,
+                        tol: self.tol,
+                        rl,
+                    };
+                    match scan_rd(
+                        self.rd_values,
+                        (lo, hi),
+                        g_target,
+                        rd_cap.min(zout_cap),
+                        single,
+                        |x| model.gains(x),
+                        |x, err, spread| rd_metrics(x, err.max(level_g), spread),
+                        |m| score(s, m, self.prefer),
+                    ) {
+                        Some(b) => at_rd = best_of(at_rd, b, |m| score(s, m, self.prefer)),
+                        None => continue,
+                    }
+                }
+                any = true;
+                if min_ub2 > 0.0 {
+                    ratio_min = ratio_min.min((max_lb / min_ub2).max(1.0) * rd_part);
+                } else {
+                    ratio_min = 1.0;
+                }
+                level_min = level_min.min(level_g);
             }
+            if !any {
+                return None;
+            }
+            ratio = ratio_min;
+            level_error = level_min;
         }
         if lambda_scan {
             // λ > 0: the operating point moves with RD, but gm stays
@@ -845,42 +925,47 @@ impl Bounds<'_> {
             // A common-source stage loses |gain| to gds; elsewhere both
             // ends of the gds range are taken.
             let both_gds = t.input_at_source();
-            let mut gains = |x: f64| {
-                let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
-                for c in w.iter() {
-                    let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
-                    for cmb in 0..combos {
-                        let (x_up, x_dn) = (x * (1.0 + tol), x * (1.0 - tol));
-                        let mut up = gain_at_g(v, c.g_lo_up, c.gds_hi, x_up, cmb, 1.0 - tol).0;
-                        let mut dn = gain_at_g(v, c.g_hi_dn, c.gds_lo, x_dn, cmb, 1.0 + tol).0;
-                        if both_gds {
-                            // |gain| is monotone in gds (a ratio of linear
-                            // terms) but its direction is not known here.
-                            up = up.min(gain_at_g(v, c.g_lo_up, c.gds_lo, x_up, cmb, 1.0 - tol).0);
-                            dn = dn.max(gain_at_g(v, c.g_hi_dn, c.gds_hi, x_dn, cmb, 1.0 + tol).0);
+            for group in &groups {
+                let mut gains = |x: f64| {
+                    let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
+                    for c in w.iter() {
+                        let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
+                        for cmb in group {
+                            let (x_up, x_dn) = (x * (1.0 + tol), x * (1.0 - tol));
+                            let mut up = gain_at_g(v, c.g_lo_up, c.gds_hi, x_up, cmb, 1.0 - tol).0;
+                            let mut dn = gain_at_g(v, c.g_hi_dn, c.gds_lo, x_dn, cmb, 1.0 + tol).0;
+                            if both_gds {
+                                // |gain| is monotone in gds (a ratio of
+                                // linear terms) but its direction is not
+                                // known here.
+                                up = up
+                                    .min(gain_at_g(v, c.g_lo_up, c.gds_lo, x_up, cmb, 1.0 - tol).0);
+                                dn = dn
+                                    .max(gain_at_g(v, c.g_hi_dn, c.gds_hi, x_dn, cmb, 1.0 + tol).0);
+                            }
+                            lb_i = lb_i.min(up);
+                            ub_i = ub_i.max(dn);
                         }
-                        lb_i = lb_i.min(up);
-                        ub_i = ub_i.max(dn);
+                        strong = strong.max(lb_i * share_lo);
+                        weak = weak.min(ub_i * share_hi);
                     }
-                    strong = strong.max(lb_i * share_lo);
-                    weak = weak.min(ub_i * share_hi);
+                    (strong, weak)
+                };
+                if let Some(b) = scan_rd(
+                    self.rd_values,
+                    (lo, hi),
+                    g_target,
+                    rd_cap.min(zout_cap),
+                    single,
+                    &mut gains,
+                    &rd_metrics,
+                    |m| score(s, m, self.prefer),
+                ) {
+                    at_rd = best_of(at_rd, b, |m| score(s, m, self.prefer));
                 }
-                (strong, weak)
-            };
-            let bound = scan_rd(
-                self.rd_values,
-                (lo, hi),
-                g_target,
-                rd_cap.min(zout_cap),
-                single,
-                &mut gains,
-                &rd_metrics,
-                |m| score(s, m, self.prefer),
-            );
-            match bound {
-                Some(b) => at_rd = Some(b),
-                None => return None,
             }
+            // No group has a drain resistor that can work.
+            at_rd.as_ref()?;
         }
         if at_rd.is_some() {
             return at_rd;

@@ -444,6 +444,84 @@ fn structural(p: &Problem, t: &dyn Topology) -> Option<Rejection> {
     None
 }
 
+/// Search one topology (by registry position): its kept designs, or why
+/// it gave none, with the work done.
+fn search_one(
+    p: &Problem,
+    shelf: &Shelf,
+    opts: &Options,
+    index: usize,
+) -> (Result<Vec<Design>, Rejection>, Effort) {
+    let t = TOPOLOGIES[index];
+    if let Some(r) = structural(p, t) {
+        return (Err(r), Effort::default());
+    }
+    let mut col = Collector {
+        p,
+        t,
+        index,
+        prefer: opts.prefer,
+        keep: opts.per_topology.max(opts.top).max(1),
+        designs: Vec::new(),
+        miss: MissTracker::default(),
+        effort: Effort::default(),
+        top_scores: Vec::new(),
+    };
+    match opts.method {
+        Method::Smart => smart::search(&mut col, shelf),
+        Method::Exhaustive => exhaustive::search(&mut col, shelf),
+    }
+    if col.designs.is_empty() {
+        let r = col.miss.rejection(
+            p,
+            t,
+            &format!(
+                "{}: no bias network inside parts.range keeps the device on and saturated",
+                t.id()
+            ),
+        );
+        return (Err(r), col.effort);
+    }
+    col.trim();
+    (Ok(col.designs), col.effort)
+}
+
+/// `f` for every topology of the registry, in registry order. The
+/// topologies are independent searches, so they run on as many threads
+/// as the machine has cores (each takes the next topology not yet taken);
+/// without threads they run here one after another.
+fn each_topology<R: Send>(f: impl Fn(usize) -> R + Sync) -> Vec<(usize, R)> {
+    use std::sync::atomic::AtomicUsize;
+    let n = TOPOLOGIES.len();
+    let next = AtomicUsize::new(0);
+    let run = || {
+        let mut out = Vec::new();
+        loop {
+            let i = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+            if i >= n {
+                return out;
+            }
+            out.push((i, f(i)));
+        }
+    };
+    let threads = std::thread::available_parallelism().map_or(1, |x| x.get().min(n));
+    let mut all: Vec<(usize, R)> = std::thread::scope(|sc| {
+        let others: Vec<_> = (1..threads)
+            .filter_map(|_| std::thread::Builder::new().spawn_scoped(sc, run).ok())
+            .collect();
+        let mut all = run();
+        for h in others {
+            match h.join() {
+                Ok(v) => all.extend(v),
+                Err(e) => std::panic::resume_unwind(e),
+            }
+        }
+        all
+    });
+    all.sort_by_key(|x| x.0);
+    all
+}
+
 /// Run the search.
 pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, SearchError> {
     if shelf.values.is_empty() {
@@ -475,43 +553,15 @@ pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, S
     }
     let mut all = Vec::new();
     let mut rejected = Vec::new();
-    for (index, &t) in TOPOLOGIES.iter().enumerate() {
-        if let Some(r) = structural(&p, t) {
-            rejected.push(r);
-            continue;
+    for (_, (outcome, e)) in each_topology(|i| search_one(&p, &shelf, opts, i)) {
+        effort.configurations += e.configurations;
+        effort.corner_checks += e.corner_checks;
+        effort.exact_checks += e.exact_checks;
+        effort.screen_checks += e.screen_checks;
+        match outcome {
+            Ok(designs) => all.extend(designs),
+            Err(r) => rejected.push(r),
         }
-        let mut col = Collector {
-            p: &p,
-            t,
-            index,
-            prefer: opts.prefer,
-            keep: opts.per_topology.max(opts.top).max(1),
-            designs: Vec::new(),
-            miss: MissTracker::default(),
-            effort: Effort::default(),
-            top_scores: Vec::new(),
-        };
-        match opts.method {
-            Method::Smart => smart::search(&mut col, &shelf),
-            Method::Exhaustive => exhaustive::search(&mut col, &shelf),
-        }
-        effort.configurations += col.effort.configurations;
-        effort.corner_checks += col.effort.corner_checks;
-        effort.exact_checks += col.effort.exact_checks;
-        effort.screen_checks += col.effort.screen_checks;
-        if col.designs.is_empty() {
-            rejected.push(col.miss.rejection(
-                &p,
-                t,
-                &format!(
-                    "{}: no bias network inside parts.range keeps the device on and saturated",
-                    t.id()
-                ),
-            ));
-            continue;
-        }
-        col.trim();
-        all.extend(col.designs);
     }
     let ms: Vec<Metrics> = all.iter().map(|d| d.metrics).collect();
     let keep = pareto(&ms);

@@ -488,19 +488,22 @@ fn search_one(
 
 /// `f` for every topology of the registry, in registry order. The
 /// topologies are independent searches, so they run on as many threads
-/// as the machine has cores (each takes the next topology not yet taken);
-/// without threads they run here one after another.
+/// as the machine has cores (each takes the next topology not yet taken,
+/// those with the most resistors, the longest searches, first); without
+/// threads they run here one after another.
 fn each_topology<R: Send>(f: impl Fn(usize) -> R + Sync) -> Vec<(usize, R)> {
     use std::sync::atomic::AtomicUsize;
     let n = TOPOLOGIES.len();
+    let mut order: Vec<usize> = (0..n).collect();
+    order.sort_by_key(|&i| std::cmp::Reverse(TOPOLOGIES[i].parts().len()));
     let next = AtomicUsize::new(0);
     let run = || {
         let mut out = Vec::new();
         loop {
-            let i = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-            if i >= n {
+            let k = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+            let Some(&i) = order.get(k) else {
                 return out;
-            }
+            };
             out.push((i, f(i)));
         }
     };

@@ -844,22 +844,34 @@ impl Bounds<'_> {
             // RD bound (a group no point of which can work drops out).
             let (mut ratio_min, mut level_min) = (f64::INFINITY, f64::INFINITY);
             let mut any = false;
+            // With λ = 0 |gain| at given resistors depends on the case only
+            // through gm and rises with it, so the strongest case's floor is
+            // the gain at the largest gm floor and the weakest case's ceiling
+            // the gain at the smallest gm ceiling (the same values as taking
+            // every case, for two evaluations instead of two per case).
+            let g_strong = w.iter().map(|c| c.g_lo_up).fold(0.0f64, f64::max);
+            let g_weak = w.iter().map(|c| c.g_hi_dn).fold(f64::INFINITY, f64::min);
             for group in &groups {
                 let mut max_lb: f64 = 0.0;
                 let mut min_ub2 = f64::INFINITY;
-                for c in w.iter() {
+                if self.lambda_free {
+                    let (dn, up) = (1.0 - self.tol, 1.0 + self.tol);
+                    let (mut lb, mut ub) = (f64::INFINITY, 0.0f64);
+                    for cmb in group {
+                        lb = lb.min(gain_at_m(v, g_strong, rd_ref, cmb, dn).0);
+                        ub = ub.max(gain_at_m(v, g_weak, rd_ref, cmb, up).0);
+                    }
+                    max_lb = lb * share_lo;
+                    min_ub2 = ub * share_hi;
+                }
+                for c in w.iter().filter(|_| !self.lambda_free) {
                     let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
                     for cmb in group {
                         let (dn, up) = (1.0 - self.tol, 1.0 + self.tol);
-                        if self.lambda_free {
-                            lb_i = lb_i.min(gain_at_m(v, c.g_lo_up, rd_ref, cmb, dn).0);
-                            ub_i = ub_i.max(gain_at_m(v, c.g_hi_dn, rd_ref, cmb, up).0);
-                        } else {
-                            // |gain| is monotone in gds: both ends of its range.
-                            for gds in [c.gds_lo, c.gds_hi] {
-                                lb_i = lb_i.min(gain_at_g(v, c.g_lo_up, gds, rd_ref, cmb, dn).0);
-                                ub_i = ub_i.max(gain_at_g(v, c.g_hi_dn, gds, rd_ref, cmb, up).0);
-                            }
+                        // |gain| is monotone in gds: both ends of its range.
+                        for gds in [c.gds_lo, c.gds_hi] {
+                            lb_i = lb_i.min(gain_at_g(v, c.g_lo_up, gds, rd_ref, cmb, dn).0);
+                            ub_i = ub_i.max(gain_at_g(v, c.g_hi_dn, gds, rd_ref, cmb, up).0);
                         }
                     }
                     // With a source resistance the gain from the EMF is av

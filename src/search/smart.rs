@@ -297,6 +297,21 @@ fn scan_rd(
 /// the gain) up to which a box bounds each on its own.
 const SOURCE_POINTS: usize = 16;
 
+/// Most source resistors of any topology (a unit test checks the registry).
+const MAX_SOURCES: usize = 2;
+
+/// The `i`-th combination of the options of the source axes with index
+/// ranges `ranges` (mixed radix, the first axis fastest).
+fn source_point(ranges: impl Iterator<Item = (usize, usize)>, i: usize) -> [usize; MAX_SOURCES] {
+    let mut pt = [0usize; MAX_SOURCES];
+    let mut rest = i;
+    for (slot, r) in ranges.enumerate() {
+        pt[slot] = r.0 + rest % (r.1 - r.0);
+        rest /= r.1 - r.0;
+    }
+    pt
+}
+
 /// The better of two bounds of parts of one box: the metrics of the one
 /// with the higher score, the drain resistor window spanning both.
 fn best_of(acc: Option<Bound>, b: Bound, score_of: impl Fn(&Metrics) -> f64) -> Option<Bound> {
@@ -643,23 +658,21 @@ impl Bounds<'_> {
         // source resistor, so the extremes of the source axes bound it.
         // (A bypassed source resistor never enters the gain: no extremes.)
         let src_axes = &self.src_axes;
-        // A point of the source axes: one option index per axis.
-        let extremes: Vec<Vec<usize>> = (0..1usize << src_axes.len())
-            .map(|combo| {
-                src_axes
-                    .iter()
-                    .enumerate()
-                    .map(|(bit, &ai)| {
-                        let r = ranges[ai];
-                        if combo & (1 << bit) != 0 {
-                            r.1 - 1
-                        } else {
-                            r.0
-                        }
-                    })
-                    .collect()
-            })
-            .collect();
+        // A point of the source axes: one option index per axis (fixed
+        // arrays: a bound allocates nothing).
+        let mut extremes = [[0usize; MAX_SOURCES]; 1 << MAX_SOURCES];
+        let n_ext = 1usize << src_axes.len();
+        for (combo, e) in extremes.iter_mut().enumerate().take(n_ext) {
+            for (bit, &ai) in src_axes.iter().enumerate() {
+                let r = ranges[ai];
+                e[bit] = if combo & (1 << bit) != 0 {
+                    r.1 - 1
+                } else {
+                    r.0
+                };
+            }
+        }
+        let extremes = &extremes[..n_ext];
         let gain_at_g = |v: &mut [f64], gm: f64, gds: f64, rd: f64, pick: &[usize], mult: f64| {
             for (&ai, &j) in src_axes.iter().zip(pick) {
                 for (k, &pos) in axes[ai].positions.iter().enumerate() {
@@ -692,24 +705,25 @@ impl Bounds<'_> {
             .iter()
             .map(|&ai| ranges[ai].1 - ranges[ai].0)
             .product();
-        let groups: Vec<Vec<Vec<usize>>> = if points > 1 && points <= SOURCE_POINTS {
-            let mut all: Vec<Vec<usize>> = vec![Vec::new()];
-            for &ai in src_axes {
-                let r = ranges[ai];
-                all = all
-                    .into_iter()
-                    .flat_map(|p| {
-                        (r.0..r.1).map(move |j| {
-                            let mut q = p.clone();
-                            q.push(j);
-                            q
-                        })
-                    })
-                    .collect();
+        let mut each = [[0usize; MAX_SOURCES]; SOURCE_POINTS];
+        let n_each = if points > 1 && points <= SOURCE_POINTS {
+            for (i, pt) in each.iter_mut().enumerate().take(points) {
+                *pt = source_point(src_axes.iter().map(|&ai| ranges[ai]), i);
             }
-            all.into_iter().map(|p| vec![p]).collect()
+            points
         } else {
-            vec![extremes.clone()]
+            0
+        };
+        // The groups: each point alone, or one group of the extremes.
+        let each = &each;
+        let groups = || {
+            (0..n_each.max(1)).map(move |i| {
+                if n_each > 0 {
+                    &each[i..i + 1]
+                } else {
+                    extremes
+                }
+            })
         };
         let rd_best = rd_cap.min(self.r_max);
         // With λ = 0 (gds = 0) and no source resistance inside the gain,
@@ -759,7 +773,7 @@ impl Bounds<'_> {
             for c in w.iter() {
                 let mut ub: f64 = 0.0;
                 let mut zin_ub: f64 = 0.0;
-                for cmb in &extremes {
+                for cmb in extremes {
                     if !scanned {
                         ub = ub.max(gain_at(v, c.g_hi, rd_best, cmb).0);
                     }
@@ -851,7 +865,7 @@ impl Bounds<'_> {
             // every case, for two evaluations instead of two per case).
             let g_strong = w.iter().map(|c| c.g_lo_up).fold(0.0f64, f64::max);
             let g_weak = w.iter().map(|c| c.g_hi_dn).fold(f64::INFINITY, f64::min);
-            for group in &groups {
+            for group in groups() {
                 let mut max_lb: f64 = 0.0;
                 let mut min_ub2 = f64::INFINITY;
                 if self.lambda_free {
@@ -937,7 +951,7 @@ impl Bounds<'_> {
             // A common-source stage loses |gain| to gds; elsewhere both
             // ends of the gds range are taken.
             let both_gds = t.input_at_source();
-            for group in &groups {
+            for group in groups() {
                 let mut gains = |x: f64| {
                     let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
                     for c in w.iter() {
@@ -1715,5 +1729,38 @@ fn visit(
             let tols = shelf.tolerances_for(v);
             col.exact(v, &tols);
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::topology::TOPOLOGIES;
+
+    // The box bound keeps source points in fixed arrays of MAX_SOURCES.
+    #[test]
+    fn no_topology_has_more_source_resistors_than_the_bound_holds() {
+        for t in TOPOLOGIES {
+            let n = t.roles().iter().filter(|r| **r == Role::Source).count();
+            assert!(n <= MAX_SOURCES, "{}: {n} source resistors", t.id());
+        }
+    }
+
+    // The source points of a box enumerate every combination once: with
+    // widths 3 and 2 there are 6, each (axis 0, axis 1) pair exactly once.
+    #[test]
+    fn source_points_cover_each_combination_once() {
+        let ranges = [(4usize, 7usize), (10, 12)];
+        let mut seen = Vec::new();
+        for i in 0..6 {
+            let pt = source_point(ranges.iter().copied(), i);
+            seen.push((pt[0], pt[1]));
+        }
+        seen.sort();
+        seen.dedup();
+        assert_eq!(seen.len(), 6);
+        assert!(seen
+            .iter()
+            .all(|&(a, b)| (4..7).contains(&a) && (10..12).contains(&b)));
     }
 }

@@ -91,7 +91,9 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f6
 /// larger source resistance.
 struct Axis {
     positions: Vec<usize>,
-    options: Vec<Vec<f64>>,
+    /// The options' values, `positions.len()` per option, one after
+    /// another (one allocation for the whole axis).
+    options: Vec<f64>,
     gate_axis: bool,
     /// A logarithmic measure of each option (of the gate voltage, or of
     /// the resistance), ascending: the box is split along the axis whose
@@ -110,6 +112,17 @@ type ZinTable = (Vec<f64>, Vec<(f64, f64)>);
 const BLOCK: usize = 64;
 
 impl Axis {
+    /// Number of options.
+    fn len(&self) -> usize {
+        self.options.len() / self.positions.len()
+    }
+
+    /// The values of option `j`, one per position, ohms.
+    fn option(&self, j: usize) -> &[f64] {
+        let w = self.positions.len();
+        &self.options[j * w..(j + 1) * w]
+    }
+
     /// Smallest and largest Zin over the options `s..e` (None when Zin is
     /// not set here).
     fn zin_range(&self, s: usize, e: usize) -> Option<(f64, f64)> {
@@ -443,7 +456,7 @@ impl Bounds<'_> {
             for (a, r) in axes.iter().zip(ranges) {
                 let j = pick(a, *r);
                 for (k, &pos) in a.positions.iter().enumerate() {
-                    v[pos] = a.options[j][k];
+                    v[pos] = a.option(j)[k];
                 }
             }
         };
@@ -676,7 +689,7 @@ impl Bounds<'_> {
         let gain_at_g = |v: &mut [f64], gm: f64, gds: f64, rd: f64, pick: &[usize], mult: f64| {
             for (&ai, &j) in src_axes.iter().zip(pick) {
                 for (k, &pos) in axes[ai].positions.iter().enumerate() {
-                    v[pos] = axes[ai].options[j][k] * mult;
+                    v[pos] = axes[ai].option(j)[k] * mult;
                 }
             }
             if let Some(k) = self.rd {
@@ -1312,11 +1325,11 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             .iter()
             .map(|x| (x.0.max(0.0) + floor_v).ln())
             .collect();
-        let options: Vec<Vec<f64>> = pairs.into_iter().map(|(_, r1, r2)| vec![r1, r2]).collect();
+        let options: Vec<f64> = pairs.iter().flat_map(|&(_, r1, r2)| [r1, r2]).collect();
         let zin = zin_from_divider.then(|| {
-            let z: Vec<f64> = options
+            let z: Vec<f64> = pairs
                 .iter()
-                .map(|o| o[0] * o[1] / (o[0] + o[1]))
+                .map(|&(_, r1, r2)| r1 * r2 / (r1 + r2))
                 .collect();
             let blocks = z
                 .chunks(BLOCK)
@@ -1342,7 +1355,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             axes.push(Axis {
                 positions: vec![i],
                 scale: opts.iter().map(|x| (x + r0).ln()).collect(),
-                options: opts.into_iter().map(|x| vec![x]).collect(),
+                options: opts,
                 gate_axis: false,
                 zin: None,
             });
@@ -1419,7 +1432,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         for ((pos, opts), &j) in outer.iter().zip(&oidx) {
             v[*pos] = opts[j];
         }
-        let ranges: Vec<(usize, usize)> = axes.iter().map(|a| (0, a.options.len())).collect();
+        let ranges: Vec<(usize, usize)> = axes.iter().map(|a| (0, a.len())).collect();
         if feedback {
             // Drain feedback has no box: RD is an outer choice.
             col.effort.configurations += 1;
@@ -1460,7 +1473,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
                         v[*pos] = opts[opts.len() - 1];
                     }
                     let ranges: Vec<(usize, usize)> =
-                        axes.iter().map(|a| (0, a.options.len())).collect();
+                        axes.iter().map(|a| (0, a.len())).collect();
                     diagnose(col, &axes, &ranges, &mut v, run_k, shelf);
                 }
                 return;
@@ -1542,7 +1555,7 @@ fn branch(
         let Some(i) = widest else {
             for (a, r) in axes.iter().zip(&ranges) {
                 for (k, &pos) in a.positions.iter().enumerate() {
-                    v[pos] = a.options[r.0][k];
+                    v[pos] = a.option(r.0)[k];
                 }
             }
             col.effort.configurations += 1;
@@ -1643,7 +1656,7 @@ fn diagnose(
     loop {
         for ((a, p), &j) in axes.iter().zip(&picks).zip(&idx) {
             for (k, &pos) in a.positions.iter().enumerate() {
-                v[pos] = a.options[p[j]][k];
+                v[pos] = a.option(p[j])[k];
             }
         }
         visit(col, v, run_k, false, shelf);

@@ -38,7 +38,6 @@ use crate::analysis::{
 use crate::device::SquareLaw;
 use crate::rank::{score, Metrics, Prefer};
 use crate::topology::{Gate, Rails, Role, SignalContext, Topology};
-use rustc_hash::FxHashMap;
 
 /// Divider pairs (R_top, R_bottom): all shelf pairs, or with `dominance`
 /// only the largest placement of each ratio. With `zin_floor` > 0 pairs
@@ -60,7 +59,9 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f6
         })
         .collect();
     let mut out: Vec<(f64, f64)> = Vec::new();
-    let mut best: FxHashMap<i64, (f64, f64)> = FxHashMap::default();
+    // With dominance: (ratio key, R1, R2) of every candidate, then the
+    // largest R1 of each key (the first in ascending R2 on a tie).
+    let mut keyed: Vec<(i64, f64, f64)> = Vec::new();
     for ((&r1, &l1), &t1) in vals.iter().zip(&logs).zip(&tenfold) {
         for ((&r2, &l2), &t2) in vals.iter().zip(&logs).zip(&tenfold) {
             if zin_floor > 0.0 && r1 * r2 / (r1 + r2) < zin_floor * (1.0 - SLACK) {
@@ -70,18 +71,20 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f6
                 continue;
             }
             if dominance {
-                let key = ((l2 - l1) * 1e9).round() as i64;
-                let e = best.entry(key).or_insert((r1, r2));
-                if r1 > e.0 {
-                    *e = (r1, r2);
-                }
+                keyed.push((((l2 - l1) * 1e9).round() as i64, r1, r2));
             } else {
                 out.push((r1, r2));
             }
         }
     }
     if dominance {
-        out.extend(best.into_values());
+        keyed.sort_unstable_by(|a, b| {
+            a.0.cmp(&b.0)
+                .then(b.1.total_cmp(&a.1))
+                .then(a.2.total_cmp(&b.2))
+        });
+        keyed.dedup_by_key(|x| x.0);
+        out.extend(keyed.into_iter().map(|(_, r1, r2)| (r1, r2)));
     }
     out
 }

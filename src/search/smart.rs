@@ -863,6 +863,24 @@ impl Bounds<'_> {
             m.zin_ratio = zin_ratio;
             m
         };
+        // A follower's Zout = RS ∥ 1/(gm + gds) falls with gm and gds and
+        // rises with RS. At the current-lowering tolerance extreme of every
+        // candidate gm and gds are at most their box ceilings and RS is
+        // moved up, so Zout there is at least its value with those ceilings
+        // and the box's smallest RS: above zout_max at any case, no
+        // candidate passes.
+        if let (Some(zm), None, false) = (s.limits.zout_max_ohm, self.rd, t.input_at_source()) {
+            for c in w.iter() {
+                let gds = if self.lambda_free { 0.0 } else { c.gds_hi };
+                let z = extremes
+                    .iter()
+                    .map(|cmb| gain_at_g(v, c.g_hi_dn, gds, 0.0, cmb, 1.0 + self.tol).2)
+                    .fold(f64::INFINITY, f64::min);
+                if z > zm * (1.0 + SLACK) {
+                    return None;
+                }
+            }
+        }
         if spread_free {
             let rd_ref = self.r_min;
             let rd_part = if self.rd.is_some() {
@@ -874,6 +892,10 @@ impl Bounds<'_> {
             // RD bound (a group no point of which can work drops out).
             let (mut ratio_min, mut level_min) = (f64::INFINITY, f64::INFINITY);
             let mut any = false;
+            // A follower (no drain resistor) has its |gain| bounds fixed by
+            // the bias alone: the error and spread follow from them
+            // directly, group by group.
+            let mut follower: Option<Bound> = None;
             // With λ = 0 |gain| at given resistors depends on the case only
             // through gm and rises with it, so the strongest case's floor is
             // the gain at the largest gm floor and the weakest case's ceiling
@@ -948,9 +970,36 @@ impl Bounds<'_> {
                     ratio_min = 1.0;
                 }
                 level_min = level_min.min(level_g);
+                if self.rd.is_none() {
+                    let r = if min_ub2 > 0.0 {
+                        (max_lb / min_ub2).max(1.0)
+                    } else {
+                        1.0
+                    };
+                    let mut m = optimistic(
+                        s,
+                        r,
+                        headroom_ub - s.vds_min_v,
+                        power_lb,
+                        zin_ratio,
+                        self.parts_floor,
+                    );
+                    let (err, spread) = gain_terms(max_lb, min_ub2, g_target);
+                    m.gain_error = m.gain_error.max(level_g).max(err);
+                    m.gain_spread = m.gain_spread.max(spread);
+                    let b = Bound {
+                        metrics: m,
+                        rd_window: None,
+                        rd_scores: Vec::new(),
+                    };
+                    follower = best_of(follower, b, |m| score(s, m, self.prefer));
+                }
             }
             if !any {
                 return None;
+            }
+            if follower.is_some() {
+                return follower;
             }
             ratio = ratio_min;
             level_error = level_min;

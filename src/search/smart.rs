@@ -64,10 +64,10 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f6
     let mut keyed: Vec<(i64, f64, f64)> = Vec::new();
     for ((&r1, &l1), &t1) in vals.iter().zip(&logs).zip(&tenfold) {
         for ((&r2, &l2), &t2) in vals.iter().zip(&logs).zip(&tenfold) {
-            if zin_floor > 0.0 && r1 * r2 / (r1 + r2) < zin_floor * (1.0 - SLACK) {
+            if dominance && t1 && t2 {
                 continue;
             }
-            if dominance && t1 && t2 {
+            if zin_floor > 0.0 && r1 * r2 / (r1 + r2) < zin_floor * (1.0 - SLACK) {
                 continue;
             }
             if dominance {
@@ -78,13 +78,19 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f6
         }
     }
     if dominance {
-        keyed.sort_unstable_by(|a, b| {
-            a.0.cmp(&b.0)
-                .then(b.1.total_cmp(&a.1))
-                .then(a.2.total_cmp(&b.2))
-        });
-        keyed.dedup_by_key(|x| x.0);
-        out.extend(keyed.into_iter().map(|(_, r1, r2)| (r1, r2)));
+        // Sorted by key alone (the R2/R1 order, which is also nearly the
+        // gate-voltage order the caller sorts by next).
+        keyed.sort_unstable_by_key(|x| x.0);
+        out.extend(keyed.chunk_by(|a, b| a.0 == b.0).map(|same| {
+            let best = same.iter().fold(same[0], |b, x| {
+                if x.1 > b.1 || (x.1 == b.1 && x.2 < b.2) {
+                    *x
+                } else {
+                    b
+                }
+            });
+            (best.1, best.2)
+        }));
     }
     out
 }

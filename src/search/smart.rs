@@ -108,14 +108,59 @@ struct Axis {
     /// the resistance), ascending: the box is split along the axis whose
     /// range spans the most of it, not the most options.
     scale: Vec<f64>,
-    /// For a divider that sets Zin: the parallel resistance of each option
-    /// and its extremes over blocks of [`BLOCK`] options (range extremes
-    /// for the Zin bounds of a box).
+    /// For a divider that sets Zin: its Zin tables (range extremes for the
+    /// Zin bounds of a box).
     zin: Option<ZinTable>,
 }
 
-/// Zin of each option with its (min, max) over blocks of [`BLOCK`].
-type ZinTable = (Vec<f64>, Vec<(f64, f64)>);
+/// Values with their (min, max) over blocks of [`BLOCK`]: the extremes
+/// over any index range in a few steps.
+struct Ranged {
+    v: Vec<f64>,
+    blocks: Vec<(f64, f64)>,
+}
+
+impl Ranged {
+    fn new(v: Vec<f64>) -> Ranged {
+        let blocks = v
+            .chunks(BLOCK)
+            .map(|c| {
+                c.iter()
+                    .fold((f64::INFINITY, 0.0f64), |(l, h), &x| (l.min(x), h.max(x)))
+            })
+            .collect();
+        Ranged { v, blocks }
+    }
+
+    /// Smallest and largest value over indices `s..e`.
+    fn range(&self, s: usize, e: usize) -> (f64, f64) {
+        let (mut lo, mut hi) = (f64::INFINITY, 0.0f64);
+        let mut i = s;
+        while i < e {
+            if i % BLOCK == 0 && i + BLOCK <= e {
+                let (a, b) = self.blocks[i / BLOCK];
+                lo = lo.min(a);
+                hi = hi.max(b);
+                i += BLOCK;
+            } else {
+                lo = lo.min(self.v[i]);
+                hi = hi.max(self.v[i]);
+                i += 1;
+            }
+        }
+        (lo, hi)
+    }
+}
+
+/// The Zin of each divider option: nominal (R1∥R2); at the tap-up
+/// tolerance extreme its floor, R1(1 − t_max)∥R2(1 + t_min); at the
+/// tap-down extreme its ceiling, R1(1 + t_max)∥R2(1 − t_min) (Zin rises
+/// with each resistor, and each part's tolerance lies in [t_min, t_max]).
+struct ZinTable {
+    nominal: Ranged,
+    up: Ranged,
+    down: Ranged,
+}
 
 /// Block length of the range-maximum table.
 const BLOCK: usize = 64;
@@ -132,26 +177,27 @@ impl Axis {
         &self.options[j * w..(j + 1) * w]
     }
 
-    /// Smallest and largest Zin over the options `s..e` (None when Zin is
-    /// not set here).
+    /// Smallest and largest nominal Zin over the options `s..e` (None when
+    /// Zin is not set here).
     fn zin_range(&self, s: usize, e: usize) -> Option<(f64, f64)> {
-        let (z, blocks) = self.zin.as_ref()?;
-        let (mut lo, mut hi) = (f64::INFINITY, 0.0f64);
-        let mut i = s;
-        while i < e {
-            if i % BLOCK == 0 && i + BLOCK <= e {
-                let (a, b) = blocks[i / BLOCK];
-                lo = lo.min(a);
-                hi = hi.max(b);
-                i += BLOCK;
-            } else {
-                lo = lo.min(z[i]);
-                hi = hi.max(z[i]);
-                i += 1;
-            }
-        }
-        Some((lo, hi))
+        Some(self.zin.as_ref()?.nominal.range(s, e))
     }
+
+    /// Over the options `s..e`: the smallest Zin at the tap-up extreme and
+    /// the largest at the tap-down extreme.
+    fn zin_tilted(&self, s: usize, e: usize) -> Option<(f64, f64)> {
+        let z = self.zin.as_ref()?;
+        Some((z.up.range(s, e).0, z.down.range(s, e).1))
+    }
+}
+
+/// The smallest and the largest resistor tolerance on the shelf.
+fn tolerance_span(shelf: &Shelf) -> (f64, f64) {
+    let t = &shelf.tolerances;
+    (
+        t.iter().copied().fold(f64::INFINITY, f64::min).max(0.0),
+        t.iter().copied().fold(0.0, f64::max),
+    )
 }
 
 /// The square law with λ folded into k at a given VDS (λ then 0): with
@@ -318,6 +364,10 @@ fn scan_rd(
 /// Source points (combinations of the options of the source axes inside
 /// the gain) up to which a box bounds each on its own.
 const SOURCE_POINTS: usize = 16;
+
+/// Slices of a box's Zin range bounded on their own where a source
+/// resistance makes Zin enter the gain.
+const ZIN_SLICES: usize = 6;
 
 /// Most source resistors of any topology (a unit test checks the registry).
 const MAX_SOURCES: usize = 2;
@@ -669,13 +719,57 @@ impl Bounds<'_> {
         // at most with Zin at its ceiling.
         let rsig = s.source_resistance_ohm;
         let share = |z: f64| if rsig > 0.0 { z / (z + rsig) } else { 1.0 };
+        // Where the divider sets Zin its tables give the Zin at the very
+        // extremes the gain bounds use (tap up for the strong side, tap
+        // down for the weak): the tighter of the two bounds is kept.
+        let tilted = axes
+            .iter()
+            .zip(ranges)
+            .find_map(|(a, r)| a.zin_tilted(r.0, r.1))
+            .unwrap_or((0.0, f64::INFINITY));
+        let share_floor = |z: f64| share(z.max(tilted.0).max(s.zin_min_ohm));
+        let share_ceiling = |z: f64| share(z.min(tilted.1));
         let (share_lo, share_hi) = match zin_nominal {
             Some((lo, hi)) => (
-                share((lo * (1.0 - self.tol_max)).max(s.zin_min_ohm)),
-                share(hi * (1.0 + self.tol_max)),
+                share_floor(lo * (1.0 - self.tol_max)),
+                share_ceiling(hi * (1.0 + self.tol_max)),
             ),
             None => (share(s.zin_min_ohm), 1.0),
         };
+        // Slices of the box's Zin range (geometric): with a source
+        // resistance the share moves the gain level, and a box that mixes
+        // small and large Zin would otherwise pair the level of one with
+        // the Zin of the other. Each slice bounds the candidates whose
+        // nominal Zin lies in it (every candidate lies in one): share and
+        // Zin ratio from the slice's ends, as above for the whole box.
+        let mut slices = [(share_lo, share_hi, zin_ratio); ZIN_SLICES];
+        // As many slices as the share's range spans steps of a tenth of
+        // the gain tolerance (none where it hardly moves the level).
+        let step = (1.0 + 0.1 * s.target.tolerance).ln();
+        let wanted = ((share_hi / share_lo).max(1.0).ln() / step).ceil() as usize;
+        let n_slices = match zin_nominal {
+            Some((lo, hi)) if rsig > 0.0 && hi > lo * (1.0 + 1e-9) && wanted > 1 => {
+                let n = wanted.min(ZIN_SLICES);
+                let end = |j: usize| {
+                    if j == n {
+                        hi
+                    } else {
+                        lo * (hi / lo).powf(j as f64 / n as f64)
+                    }
+                };
+                for (j, sl) in slices.iter_mut().enumerate().take(n) {
+                    let (a, b) = (end(j), end(j + 1));
+                    *sl = (
+                        share_floor(a * (1.0 - self.tol_max)),
+                        share_ceiling(b * (1.0 + self.tol_max)),
+                        b * (1.0 - self.tol) / s.zin_min_ohm,
+                    );
+                }
+                n
+            }
+            _ => 1,
+        };
+        let slices = &slices[..n_slices];
         // Gain bounds: |gain| rises with gm and RD and is monotone in each
         // source resistor, so the extremes of the source axes bound it.
         // (A bypassed source resistor never enters the gain: no extremes.)
@@ -852,7 +946,7 @@ impl Bounds<'_> {
         // The optimistic metrics with drain resistor `x` and the given
         // gain error and spread bounds: VDS at the tolerance extremes P and
         // P', the power and Zin of the box.
-        let rd_metrics = |x: f64, err: f64, spread: f64| {
+        let rd_metrics = |x: f64, err: f64, spread: f64, zin_ratio: f64| {
             let mut m = optimistic(s, 1.0, 0.0, power_lb, 1.0, self.parts_floor);
             m.gain_error = err;
             m.gain_spread = spread;
@@ -909,7 +1003,9 @@ impl Bounds<'_> {
             // every case, for two evaluations instead of two per case).
             let g_strong = w.iter().map(|c| c.g_lo_up).fold(0.0f64, f64::max);
             let g_weak = w.iter().map(|c| c.g_hi_dn).fold(f64::INFINITY, f64::min);
-            for group in groups() {
+            for (group, &(share_lo, share_hi, zin_ratio)) in
+                groups().flat_map(|g| slices.iter().map(move |sl| (g, sl)))
+            {
                 let mut max_lb: f64 = 0.0;
                 let mut min_ub2 = f64::INFINITY;
                 if self.lambda_free {
@@ -962,7 +1058,7 @@ impl Bounds<'_> {
                         rd_cap.min(zout_cap),
                         single,
                         |x| model.gains(x),
-                        |x, err, spread| rd_metrics(x, err.max(level_g), spread),
+                        |x, err, spread| rd_metrics(x, err.max(level_g), spread, zin_ratio),
                         |m| score(s, m, self.prefer),
                     ) {
                         Some(b) => at_rd = best_of(at_rd, b, |m| score(s, m, self.prefer)),
@@ -1022,7 +1118,9 @@ impl Bounds<'_> {
             // A common-source stage loses |gain| to gds; elsewhere both
             // ends of the gds range are taken.
             let both_gds = t.input_at_source();
-            for group in groups() {
+            for (group, &(share_lo, share_hi, zin_ratio)) in
+                groups().flat_map(|g| slices.iter().map(move |sl| (g, sl)))
+            {
                 let mut gains = |x: f64| {
                     let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
                     for c in w.iter() {
@@ -1055,7 +1153,7 @@ impl Bounds<'_> {
                     rd_cap.min(zout_cap),
                     single,
                     &mut gains,
-                    &rd_metrics,
+                    |x, err, spread| rd_metrics(x, err, spread, zin_ratio),
                     |m| score(s, m, self.prefer),
                 ) {
                     at_rd = best_of(at_rd, b, |m| score(s, m, self.prefer));
@@ -1384,19 +1482,21 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             .map(|x| (x.0.max(0.0) + floor_v).ln())
             .collect();
         let options: Vec<f64> = pairs.iter().flat_map(|&(_, r1, r2)| [r1, r2]).collect();
+        let (t_min, t_max) = tolerance_span(shelf);
         let zin = zin_from_divider.then(|| {
-            let z: Vec<f64> = pairs
-                .iter()
-                .map(|&(_, r1, r2)| r1 * r2 / (r1 + r2))
-                .collect();
-            let blocks = z
-                .chunks(BLOCK)
-                .map(|c| {
-                    c.iter()
-                        .fold((f64::INFINITY, 0.0f64), |(l, h), &x| (l.min(x), h.max(x)))
-                })
-                .collect();
-            (z, blocks)
+            let table = |a: f64, b: f64| {
+                Ranged::new(
+                    pairs
+                        .iter()
+                        .map(|&(_, r1, r2)| par2(r1 * a, r2 * b))
+                        .collect(),
+                )
+            };
+            ZinTable {
+                nominal: table(1.0, 1.0),
+                up: table(1.0 - t_max, 1.0 + t_min),
+                down: table(1.0 + t_max, 1.0 - t_min),
+            }
         });
         axes.push(Axis {
             positions: vec![a, b],
@@ -1465,13 +1565,8 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         prefer: col.prefer,
         parts_floor,
         roles,
-        tol: shelf
-            .tolerances
-            .iter()
-            .copied()
-            .fold(f64::INFINITY, f64::min)
-            .max(0.0),
-        tol_max: shelf.tolerances.iter().copied().fold(0.0, f64::max),
+        tol: tolerance_span(shelf).0,
+        tol_max: tolerance_span(shelf).1,
         p,
         t,
         rd: if feedback { None } else { run_k },
@@ -1530,8 +1625,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
                     for (pos, opts) in &outer {
                         v[*pos] = opts[opts.len() - 1];
                     }
-                    let ranges: Vec<(usize, usize)> =
-                        axes.iter().map(|a| (0, a.len())).collect();
+                    let ranges: Vec<(usize, usize)> = axes.iter().map(|a| (0, a.len())).collect();
                     diagnose(col, &axes, &ranges, &mut v, run_k, shelf);
                 }
                 return;

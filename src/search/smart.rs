@@ -369,6 +369,11 @@ const SOURCE_POINTS: usize = 16;
 /// resistance makes Zin enter the gain.
 const ZIN_SLICES: usize = 6;
 
+/// VDS points (vds_min to the span, even steps) at which λ > 0 bounds
+/// fold k, so the gm bounds of each drain resistor can use the VDS range
+/// that resistor leaves.
+const FOLDS: usize = 4;
+
 /// Most source resistors of any topology (a unit test checks the registry).
 const MAX_SOURCES: usize = 2;
 
@@ -443,6 +448,16 @@ struct PerCase {
     /// siemens (λ > 0 only).
     gds_hi: f64,
     gds_lo: f64,
+    /// λ > 0 only: `g_lo_up` and `g_hi_dn` with k folded at each VDS of
+    /// the fold grid (vds_min to the span in [`FOLDS`] even steps), the
+    /// current ceiling and floor over every tolerance extreme (those of
+    /// the gds bounds), and the ceiling of VS over them.
+    g_lo_up_at: [f64; FOLDS],
+    g_hi_dn_at: [f64; FOLDS],
+    id_ceiling: f64,
+    id_floor: f64,
+    vs_ceiling: f64,
+    vs_floor: f64,
     /// Floors of VS and of ID at the two tolerance extremes P and P' of
     /// the headroom bound.
     vs_at: [f64; 2],
@@ -600,6 +615,7 @@ impl Bounds<'_> {
             for (i, c) in cases.iter().enumerate() {
                 let id = bias_at(t, v, &c.rails, &folded(&c.law, c.span())).0;
                 let l = c.law.lambda_per_v;
+                w[i].id_ceiling = id.max(0.0);
                 w[i].gds_hi = l * id.max(0.0) / (1.0 + l * vds_floor);
             }
             set(v, &low_id);
@@ -607,7 +623,47 @@ impl Bounds<'_> {
             for (i, c) in cases.iter().enumerate() {
                 let id = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).0;
                 let l = c.law.lambda_per_v;
+                w[i].id_floor = id.max(0.0);
                 w[i].gds_lo = l * id.max(0.0) / (1.0 + l * c.span());
+            }
+            // VS rises with the tap, with each source resistor and with k:
+            // its ceiling is at the gate axes high, the sources high, the
+            // tap up and the sources up by the largest tolerance, k folded
+            // at the span.
+            set(v, &|_: &Axis, r: (usize, usize)| r.1 - 1);
+            tilt(v, self.roles, self.tol_max, 1.0 + self.tol_max);
+            for (i, c) in cases.iter().enumerate() {
+                w[i].vs_ceiling = bias_at(t, v, &c.rails, &folded(&c.law, c.span())).2;
+            }
+            // ... and its floor at the other corner, the other way.
+            set(v, &low_vs);
+            tilt(v, self.roles, -self.tol_max, 1.0 - self.tol_max);
+            for (i, c) in cases.iter().enumerate() {
+                w[i].vs_floor = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).2;
+            }
+            // gm at the two tolerance-shifted points of the spread bound,
+            // k folded at each VDS of the grid (the ends are those above).
+            for (j, f) in (0..FOLDS).map(|j| (j, j as f64 / (FOLDS - 1) as f64)) {
+                set(v, &low_id);
+                shift(v, self.roles, self.tol, true);
+                for (i, c) in cases.iter().enumerate() {
+                    let at = vds_floor + f * (c.span() - vds_floor);
+                    w[i].g_lo_up_at[j] = if j == 0 {
+                        w[i].g_lo_up
+                    } else {
+                        bias_at(t, v, &c.rails, &folded(&c.law, at)).3
+                    };
+                }
+                set(v, &high_id);
+                shift(v, self.roles, self.tol, false);
+                for (i, c) in cases.iter().enumerate() {
+                    let at = vds_floor + f * (c.span() - vds_floor);
+                    w[i].g_hi_dn_at[j] = if j == FOLDS - 1 {
+                        w[i].g_hi_dn
+                    } else {
+                        bias_at(t, v, &c.rails, &folded(&c.law, at)).3
+                    };
+                }
             }
         }
         set(v, &low_vs);
@@ -1123,20 +1179,40 @@ impl Bounds<'_> {
             {
                 let mut gains = |x: f64| {
                     let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
-                    for c in w.iter() {
+                    for (c, case) in w.iter().zip(cases) {
+                        // With this RD every point's VDS lies in
+                        // [VDD − VS ceiling − RD(1+t)·ID ceiling,
+                        //  VDD − VS floor − RD(1−t)·ID floor]: gm between the
+                        // grid folds just outside it, gds = λ·ID/(1 + λ·VDS)
+                        // between its ends there.
+                        let (span_c, l) = (case.span(), case.law.lambda_per_v);
+                        let rails = &case.rails;
+                        let vds_lo =
+                            (rails.vdd_v - c.vs_ceiling - x * (1.0 + self.tol_max) * c.id_ceiling)
+                                .max(vds_floor);
+                        let vds_hi =
+                            (rails.vdd_v - c.vs_floor - x * (1.0 - self.tol_max) * c.id_floor)
+                                .min(span_c);
+                        let grid = |j: usize| {
+                            vds_floor + j as f64 / (FOLDS - 1) as f64 * (span_c - vds_floor)
+                        };
+                        let a = (0..FOLDS).rev().find(|&j| grid(j) <= vds_lo).unwrap_or(0);
+                        let b = (0..FOLDS).find(|&j| grid(j) >= vds_hi).unwrap_or(FOLDS - 1);
+                        let (g_floor, g_ceiling) = (c.g_lo_up_at[a], c.g_hi_dn_at[b]);
+                        let gds_hi = (l * c.id_ceiling / (1.0 + l * vds_lo)).min(c.gds_hi);
+                        let gds_lo = (l * c.id_floor / (1.0 + l * vds_hi)).max(c.gds_lo);
                         let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
                         for cmb in group {
                             let (x_up, x_dn) = (x * (1.0 + tol), x * (1.0 - tol));
-                            let mut up = gain_at_g(v, c.g_lo_up, c.gds_hi, x_up, cmb, 1.0 - tol).0;
-                            let mut dn = gain_at_g(v, c.g_hi_dn, c.gds_lo, x_dn, cmb, 1.0 + tol).0;
+                            let mut up = gain_at_g(v, g_floor, gds_hi, x_up, cmb, 1.0 - tol).0;
+                            let mut dn = gain_at_g(v, g_ceiling, gds_lo, x_dn, cmb, 1.0 + tol).0;
                             if both_gds {
                                 // |gain| is monotone in gds (a ratio of
                                 // linear terms) but its direction is not
                                 // known here.
-                                up = up
-                                    .min(gain_at_g(v, c.g_lo_up, c.gds_lo, x_up, cmb, 1.0 - tol).0);
-                                dn = dn
-                                    .max(gain_at_g(v, c.g_hi_dn, c.gds_hi, x_dn, cmb, 1.0 + tol).0);
+                                up = up.min(gain_at_g(v, g_floor, gds_lo, x_up, cmb, 1.0 - tol).0);
+                                dn =
+                                    dn.max(gain_at_g(v, g_ceiling, gds_hi, x_dn, cmb, 1.0 + tol).0);
                             }
                             lb_i = lb_i.min(up);
                             ub_i = ub_i.max(dn);

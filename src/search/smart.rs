@@ -12,8 +12,11 @@
 //!    tolerance extremes that lie in every candidate's envelope. The bound
 //!    also scans the drain resistor over the shelf (with λ = 0 |gain| is
 //!    proportional to RD∥RL; with λ > 0 gm and gds are taken at their
-//!    extremes), so the gain error, spread and headroom are bounded
-//!    together for each standard RD.
+//!    extremes over the VDS range each RD leaves), so the gain error,
+//!    spread and headroom are bounded together for each standard RD. Few
+//!    source-resistor points inside the gain, and slices of a wide Zin
+//!    range where a source resistance makes the level depend on it, are
+//!    bounded one by one inside the box.
 //!    A box whose bounds break a requirement, or whose score bound is below
 //!    the entry threshold, is dropped; the others wait in a queue, best
 //!    bound first, and are split until single configurations.

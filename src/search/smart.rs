@@ -186,6 +186,14 @@ impl Axis {
         Some(self.zin.as_ref()?.nominal.range(s, e))
     }
 
+    /// Option `i`'s Zin: nominal, its floor at the tap-up extreme and its
+    /// ceiling at the tap-down extreme (the axis must set Zin).
+    fn zin_at(&self, i: usize) -> (f64, f64, f64) {
+        self.zin.as_ref().map_or((0.0, 0.0, f64::INFINITY), |z| {
+            (z.nominal.v[i], z.up.v[i], z.down.v[i])
+        })
+    }
+
     /// Over the options `s..e`: the smallest Zin at the tap-up extreme and
     /// the largest at the tap-down extreme.
     fn zin_tilted(&self, s: usize, e: usize) -> Option<(f64, f64)> {
@@ -371,6 +379,10 @@ const SOURCE_POINTS: usize = 16;
 /// Slices of a box's Zin range bounded on their own where a source
 /// resistance makes Zin enter the gain.
 const ZIN_SLICES: usize = 6;
+
+/// Divider pairs up to which a box bounds each pair's Zin on its own there
+/// (at least [`ZIN_SLICES`]).
+const ZIN_POINTS: usize = 16;
 
 /// VDS points (vds_min to the span, even steps) at which λ > 0 bounds
 /// fold k, so the gm bounds of each drain resistor can use the VDS range
@@ -801,13 +813,33 @@ impl Bounds<'_> {
         // the Zin of the other. Each slice bounds the candidates whose
         // nominal Zin lies in it (every candidate lies in one): share and
         // Zin ratio from the slice's ends, as above for the whole box.
-        let mut slices = [(share_lo, share_hi, zin_ratio); ZIN_SLICES];
+        let mut slices = [(share_lo, share_hi, zin_ratio); ZIN_POINTS];
         // As many slices as the share's range spans steps of a tenth of
-        // the gain tolerance (none where it hardly moves the level).
+        // the gain tolerance (none where it hardly moves the level); a
+        // divider range of at most ZIN_POINTS pairs is taken pair by pair,
+        // each with its own Zin at those extremes.
         let step = (1.0 + 0.1 * s.target.tolerance).ln();
         let wanted = ((share_hi / share_lo).max(1.0).ln() / step).ceil() as usize;
-        let n_slices = match zin_nominal {
-            Some((lo, hi)) if rsig > 0.0 && hi > lo * (1.0 + 1e-9) && wanted > 1 => {
+        let divider = axes
+            .iter()
+            .zip(ranges)
+            .find(|(a, _)| a.zin.is_some())
+            .map(|(a, r)| (a, *r));
+        let n_slices = match (zin_nominal, divider) {
+            (_, Some((a, r)))
+                if rsig > 0.0 && wanted > 1 && r.1 - r.0 > 1 && r.1 - r.0 <= ZIN_POINTS =>
+            {
+                for (sl, i) in slices.iter_mut().zip(r.0..r.1) {
+                    let (z, z_up, z_dn) = a.zin_at(i);
+                    *sl = (
+                        share(z_up.max(s.zin_min_ohm)),
+                        share(z_dn),
+                        z * (1.0 - self.tol) / s.zin_min_ohm,
+                    );
+                }
+                r.1 - r.0
+            }
+            (Some((lo, hi)), _) if rsig > 0.0 && hi > lo * (1.0 + 1e-9) && wanted > 1 => {
                 let n = wanted.min(ZIN_SLICES);
                 let end = |j: usize| {
                     if j == n {

@@ -818,8 +818,13 @@ impl Bounds<'_> {
         // the gain tolerance (none where it hardly moves the level); a
         // divider range of at most ZIN_POINTS pairs is taken pair by pair,
         // each with its own Zin at those extremes.
-        let step = (1.0 + 0.1 * s.target.tolerance).ln();
-        let wanted = ((share_hi / share_lo).max(1.0).ln() / step).ceil() as usize;
+        let step = 1.0 + 0.1 * s.target.tolerance;
+        let spread = share_hi / share_lo;
+        let wanted = if spread > step {
+            (spread.ln() / step.ln()).ceil() as usize
+        } else {
+            1
+        };
         let divider = axes
             .iter()
             .zip(ranges)

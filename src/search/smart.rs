@@ -389,6 +389,12 @@ const ZIN_POINTS: usize = 16;
 /// that resistor leaves.
 const FOLDS: usize = 4;
 
+/// The `j`-th VDS of the fold grid, volts: vds_min to the span in
+/// [`FOLDS`] even steps.
+fn fold_vds(j: usize, vds_min: f64, span: f64) -> f64 {
+    vds_min + j as f64 / (FOLDS - 1) as f64 * (span - vds_min)
+}
+
 /// Most source resistors of any topology (a unit test checks the registry).
 const MAX_SOURCES: usize = 2;
 
@@ -658,26 +664,22 @@ impl Bounds<'_> {
             }
             // gm at the two tolerance-shifted points of the spread bound,
             // k folded at each VDS of the grid (the ends are those above).
-            for (j, f) in (0..FOLDS).map(|j| (j, j as f64 / (FOLDS - 1) as f64)) {
-                set(v, &low_id);
-                shift(v, self.roles, self.tol, true);
-                for (i, c) in cases.iter().enumerate() {
-                    let at = vds_floor + f * (c.span() - vds_floor);
-                    w[i].g_lo_up_at[j] = if j == 0 {
-                        w[i].g_lo_up
-                    } else {
-                        bias_at(t, v, &c.rails, &folded(&c.law, at)).3
-                    };
+            set(v, &low_id);
+            shift(v, self.roles, self.tol, true);
+            for (i, c) in cases.iter().enumerate() {
+                w[i].g_lo_up_at[0] = w[i].g_lo_up;
+                for j in 1..FOLDS {
+                    let at = fold_vds(j, vds_floor, c.span());
+                    w[i].g_lo_up_at[j] = bias_at(t, v, &c.rails, &folded(&c.law, at)).3;
                 }
-                set(v, &high_id);
-                shift(v, self.roles, self.tol, false);
-                for (i, c) in cases.iter().enumerate() {
-                    let at = vds_floor + f * (c.span() - vds_floor);
-                    w[i].g_hi_dn_at[j] = if j == FOLDS - 1 {
-                        w[i].g_hi_dn
-                    } else {
-                        bias_at(t, v, &c.rails, &folded(&c.law, at)).3
-                    };
+            }
+            set(v, &high_id);
+            shift(v, self.roles, self.tol, false);
+            for (i, c) in cases.iter().enumerate() {
+                w[i].g_hi_dn_at[FOLDS - 1] = w[i].g_hi_dn;
+                for j in 0..FOLDS - 1 {
+                    let at = fold_vds(j, vds_floor, c.span());
+                    w[i].g_hi_dn_at[j] = bias_at(t, v, &c.rails, &folded(&c.law, at)).3;
                 }
             }
         }
@@ -1077,6 +1079,27 @@ impl Bounds<'_> {
                 }
             }
         }
+        // The bound where RD is not scanned: optimistic metrics from the
+        // corner-to-corner |gain| ratio, a floor of the gain error and the
+        // Zin ratio.
+        let unscanned = |ratio: f64, level: f64, zin_ratio: f64| {
+            let mut m = optimistic(
+                s,
+                ratio,
+                headroom_ub - s.vds_min_v,
+                power_lb,
+                zin_ratio,
+                self.parts_floor,
+            );
+            m.gain_error = m.gain_error.max(level);
+            Bound {
+                metrics: m,
+                rd_window: None,
+                rd_scores: Vec::new(),
+            }
+        };
+        // Each source point (group) with each Zin slice.
+        let cells = || groups().flat_map(|g| slices.iter().map(move |sl| (g, sl)));
         if spread_free {
             let rd_ref = self.r_min;
             let rd_part = if self.rd.is_some() {
@@ -1099,9 +1122,7 @@ impl Bounds<'_> {
             // every case, for two evaluations instead of two per case).
             let g_strong = w.iter().map(|c| c.g_lo_up).fold(0.0f64, f64::max);
             let g_weak = w.iter().map(|c| c.g_hi_dn).fold(f64::INFINITY, f64::min);
-            for (group, &(share_lo, share_hi, zin_ratio)) in
-                groups().flat_map(|g| slices.iter().map(move |sl| (g, sl)))
-            {
+            for (group, &(share_lo, share_hi, zin_ratio)) in cells() {
                 let mut max_lb: f64 = 0.0;
                 let mut min_ub2 = f64::INFINITY;
                 if self.lambda_free {
@@ -1162,34 +1183,17 @@ impl Bounds<'_> {
                     }
                 }
                 any = true;
-                if min_ub2 > 0.0 {
-                    ratio_min = ratio_min.min((max_lb / min_ub2).max(1.0) * rd_part);
+                let ratio_g = if min_ub2 > 0.0 {
+                    (max_lb / min_ub2).max(1.0) * rd_part
                 } else {
-                    ratio_min = 1.0;
-                }
+                    1.0
+                };
+                ratio_min = ratio_min.min(ratio_g);
                 level_min = level_min.min(level_g);
                 if self.rd.is_none() {
-                    let r = if min_ub2 > 0.0 {
-                        (max_lb / min_ub2).max(1.0)
-                    } else {
-                        1.0
-                    };
-                    let mut m = optimistic(
-                        s,
-                        r,
-                        headroom_ub - s.vds_min_v,
-                        power_lb,
-                        zin_ratio,
-                        self.parts_floor,
-                    );
                     let (err, spread) = gain_terms(max_lb, min_ub2, g_target);
-                    m.gain_error = m.gain_error.max(level_g).max(err);
-                    m.gain_spread = m.gain_spread.max(spread);
-                    let b = Bound {
-                        metrics: m,
-                        rd_window: None,
-                        rd_scores: Vec::new(),
-                    };
+                    let mut b = unscanned(ratio_g, level_g.max(err), zin_ratio);
+                    b.metrics.gain_spread = b.metrics.gain_spread.max(spread);
                     follower = best_of(follower, b, |m| score(s, m, self.prefer));
                 }
             }
@@ -1214,9 +1218,7 @@ impl Bounds<'_> {
             // A common-source stage loses |gain| to gds; elsewhere both
             // ends of the gds range are taken.
             let both_gds = t.input_at_source();
-            for (group, &(share_lo, share_hi, zin_ratio)) in
-                groups().flat_map(|g| slices.iter().map(move |sl| (g, sl)))
-            {
+            for (group, &(share_lo, share_hi, zin_ratio)) in cells() {
                 let mut gains = |x: f64| {
                     let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
                     for (c, case) in w.iter().zip(cases) {
@@ -1233,9 +1235,7 @@ impl Bounds<'_> {
                         let vds_hi =
                             (rails.vdd_v - c.vs_floor - x * (1.0 - self.tol_max) * c.id_floor)
                                 .min(span_c);
-                        let grid = |j: usize| {
-                            vds_floor + j as f64 / (FOLDS - 1) as f64 * (span_c - vds_floor)
-                        };
+                        let grid = |j: usize| fold_vds(j, vds_floor, span_c);
                         let a = (0..FOLDS).rev().find(|&j| grid(j) <= vds_lo).unwrap_or(0);
                         let b = (0..FOLDS).find(|&j| grid(j) >= vds_hi).unwrap_or(FOLDS - 1);
                         let (g_floor, g_ceiling) = (c.g_lo_up_at[a], c.g_hi_dn_at[b]);
@@ -1281,20 +1281,7 @@ impl Bounds<'_> {
         if at_rd.is_some() {
             return at_rd;
         }
-        let mut m = optimistic(
-            s,
-            ratio,
-            headroom_ub - s.vds_min_v,
-            power_lb,
-            zin_ratio,
-            self.parts_floor,
-        );
-        m.gain_error = m.gain_error.max(level_error);
-        Some(Bound {
-            metrics: m,
-            rd_window: None,
-            rd_scores: Vec::new(),
-        })
+        Some(unscanned(ratio, level_error, zin_ratio))
     }
 }
 
@@ -1560,6 +1547,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         .collect();
     let gate_free = rsig == 0.0;
     let r_max = shelf.values[shelf.values.len() - 1];
+    let (t_min, t_max) = tolerance_span(shelf);
     let mut v = vec![0.0; roles.len()];
     for &g in &gates {
         v[g] = if gate_free {
@@ -1598,7 +1586,6 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             .map(|x| (x.0.max(0.0) + floor_v).ln())
             .collect();
         let options: Vec<f64> = pairs.iter().flat_map(|&(_, r1, r2)| [r1, r2]).collect();
-        let (t_min, t_max) = tolerance_span(shelf);
         let zin = zin_from_divider.then(|| {
             let table = |a: f64, b: f64| {
                 Ranged::new(
@@ -1681,8 +1668,8 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         prefer: col.prefer,
         parts_floor,
         roles,
-        tol: tolerance_span(shelf).0,
-        tol_max: tolerance_span(shelf).1,
+        tol: t_min,
+        tol_max: t_max,
         p,
         t,
         rd: if feedback { None } else { run_k },

@@ -102,39 +102,88 @@ impl Metrics {
 
 /// The score of a design, 0 (worst) to 1 (best).
 pub fn score(spec: &ValidSpec, m: &Metrics, prefer: Prefer) -> f64 {
-    let tol = spec.target.tolerance;
-    let span = spec.supply.vdd_v - spec.supply.vss_v;
-    let p_ref = spec.limits.power_max_w.unwrap_or(span * 1e-3);
-    let clamp = |x: f64| x.clamp(0.0, 1.0);
-    let terms = [
-        clamp(1.0 - m.gain_error / tol),
-        clamp(1.0 - m.gain_spread / (2.0 * tol)),
-        clamp(m.headroom_v / (0.25 * span)),
-        clamp(1.0 / (1.0 + m.power_w / p_ref)),
+    Scorer::new(spec, prefer).score(m)
+}
+
+/// The score's constants for one specification and preference, taken
+/// once: the search scores millions of bounds with the same ones.
+#[derive(Debug, Clone, Copy)]
+pub struct Scorer {
+    /// 1 / gain tolerance.
+    inv_tol: f64,
+    /// 1 / (25 % of the supply span), per volt.
+    inv_room: f64,
+    /// 1 / reference power, per watt.
+    inv_p_ref: f64,
+    /// Term weights over their sum.
+    w: [f64; 6],
+}
+
+impl Scorer {
+    /// The constants of `spec` with `prefer`'s weights.
+    pub fn new(spec: &ValidSpec, prefer: Prefer) -> Scorer {
+        let span = spec.supply.vdd_v - spec.supply.vss_v;
+        let mut w = [2.0, 2.0, 1.0, 1.0, 1.0, 1.0];
+        match prefer {
+            Prefer::Balanced => {}
+            Prefer::Accurate => w[0] *= 4.0,
+            Prefer::Robust => {
+                w[1] *= 4.0;
+                w[2] *= 4.0;
+            }
+            Prefer::LowPower => w[3] *= 4.0,
+            Prefer::FewParts => w[5] *= 4.0,
+        }
+        let total: f64 = w.iter().sum();
+        Scorer {
+            inv_tol: 1.0 / spec.target.tolerance,
+            inv_room: 1.0 / (0.25 * span),
+            inv_p_ref: 1.0 / spec.limits.power_max_w.unwrap_or(span * 1e-3),
+            w: w.map(|x| x / total),
+        }
+    }
+
+    /// The score of metrics `m`, 0 (worst) to 1 (best).
+    pub fn score(&self, m: &Metrics) -> f64 {
+        self.gain_and_room(m) + self.fixed(m)
+    }
+
+    /// The weighted accuracy, spread and headroom terms (the part of the
+    /// score a drain resistor moves).
+    pub fn gain_and_room(&self, m: &Metrics) -> f64 {
+        let w = &self.w;
+        w[0] * unit(1.0 - m.gain_error * self.inv_tol)
+            + w[1] * unit(1.0 - 0.5 * m.gain_spread * self.inv_tol)
+            + w[2] * unit(m.headroom_v * self.inv_room)
+    }
+
+    /// The weighted power, Zin and parts terms.
+    pub fn fixed(&self, m: &Metrics) -> f64 {
+        let w = &self.w;
         // (log10 is 1 at 10 and 0 at 1: the clamp needs no logarithm
-        // outside, and the search asks for this term very often.)
-        if m.zin_ratio >= 10.0 {
+        // outside.)
+        let zin = if m.zin_ratio >= 10.0 {
             1.0
         } else if m.zin_ratio <= 1.0 {
             0.0
         } else {
             m.zin_ratio.log10()
-        },
-        clamp((9.0 - m.parts as f64) / 5.0),
-    ];
-    let mut w = [2.0, 2.0, 1.0, 1.0, 1.0, 1.0];
-    match prefer {
-        Prefer::Balanced => {}
-        Prefer::Accurate => w[0] *= 4.0,
-        Prefer::Robust => {
-            w[1] *= 4.0;
-            w[2] *= 4.0;
-        }
-        Prefer::LowPower => w[3] *= 4.0,
-        Prefer::FewParts => w[5] *= 4.0,
+        };
+        w[3] * unit(1.0 / (1.0 + m.power_w * self.inv_p_ref))
+            + w[4] * zin
+            + w[5] * unit((9.0 - m.parts as f64) / 5.0)
     }
-    let total: f64 = w.iter().sum();
-    terms.iter().zip(w).map(|(t, w)| t * w).sum::<f64>() / total
+}
+
+/// `x` clamped to [0, 1] (NaN stays NaN).
+fn unit(x: f64) -> f64 {
+    if x < 0.0 {
+        0.0
+    } else if x > 1.0 {
+        1.0
+    } else {
+        x
+    }
 }
 
 /// Total order: higher score first, then topology order, then values

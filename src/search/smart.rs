@@ -39,7 +39,7 @@ use crate::analysis::{
     all_pass, corners_only, gain_window, margins, quick, worst_case_of, Problem, WorstCase, SLACK,
 };
 use crate::device::SquareLaw;
-use crate::rank::{score, Metrics, Prefer};
+use crate::rank::{Metrics, Scorer};
 use crate::topology::{Gate, Rails, Role, SignalContext, Topology};
 
 /// Divider pairs (R_top, R_bottom): all shelf pairs, or with `dominance`
@@ -330,7 +330,8 @@ fn gain_terms(strong: f64, weak: f64, g: f64) -> (f64, f64) {
 /// most `rd_cap`. For a single configuration every RD's score bound is
 /// kept; otherwise the scan stops past the bottom of the error's V (the
 /// strong side binds), where a larger RD only worsens error, spread and
-/// headroom. `None` when no RD can work.
+/// headroom. `None` when no RD can work. The metrics' power, Zin and
+/// parts must not depend on RD: their part of the score is taken once.
 #[allow(clippy::too_many_arguments)]
 fn scan_rd(
     values: &[f64],
@@ -340,7 +341,7 @@ fn scan_rd(
     single: bool,
     mut gains: impl FnMut(f64) -> (f64, f64),
     mut metrics: impl FnMut(f64, f64, f64) -> Metrics,
-    score_of: impl Fn(&Metrics) -> f64,
+    scorer: &Scorer,
 ) -> Option<Bound> {
     let first = first_true(values.len(), |j| gains(values[j]).1 >= lo * (1.0 - SLACK));
     let last = first_true(values.len(), |j| {
@@ -350,11 +351,12 @@ fn scan_rd(
     let window = (first.min(last), last);
     let mut best: Option<(f64, Metrics)> = None;
     let mut rd_scores = Vec::new();
+    let mut fixed = None;
     for &x in &values[window.0..window.1] {
         let (strong, weak) = gains(x);
         let (err, spread) = gain_terms(strong, weak, g);
         let m = metrics(x, err, spread);
-        let sc = score_of(&m);
+        let sc = scorer.gain_and_room(&m) + *fixed.get_or_insert_with(|| scorer.fixed(&m));
         if single {
             rd_scores.push(sc);
         }
@@ -497,8 +499,8 @@ struct Bounds<'a> {
     cases: Vec<Case>,
     /// The shelf, ohms ascending (the drain resistor's choices).
     rd_values: &'a [f64],
-    /// Ranking preference (the box bound is a score bound).
-    prefer: Prefer,
+    /// The score's constants (the box bound is a score bound).
+    scorer: Scorer,
     parts_floor: usize,
     /// Role of each position.
     roles: &'static [Role],
@@ -1176,9 +1178,9 @@ impl Bounds<'_> {
                         single,
                         |x| model.gains(x),
                         |x, err, spread| rd_metrics(x, err.max(level_g), spread, zin_ratio),
-                        |m| score(s, m, self.prefer),
+                        &self.scorer,
                     ) {
-                        Some(b) => at_rd = best_of(at_rd, b, |m| score(s, m, self.prefer)),
+                        Some(b) => at_rd = best_of(at_rd, b, |m| self.scorer.score(m)),
                         None => continue,
                     }
                 }
@@ -1194,7 +1196,7 @@ impl Bounds<'_> {
                     let (err, spread) = gain_terms(max_lb, min_ub2, g_target);
                     let mut b = unscanned(ratio_g, level_g.max(err), zin_ratio);
                     b.metrics.gain_spread = b.metrics.gain_spread.max(spread);
-                    follower = best_of(follower, b, |m| score(s, m, self.prefer));
+                    follower = best_of(follower, b, |m| self.scorer.score(m));
                 }
             }
             if !any {
@@ -1270,9 +1272,9 @@ impl Bounds<'_> {
                     single,
                     &mut gains,
                     |x, err, spread| rd_metrics(x, err, spread, zin_ratio),
-                    |m| score(s, m, self.prefer),
+                    &self.scorer,
                 ) {
-                    at_rd = best_of(at_rd, b, |m| score(s, m, self.prefer));
+                    at_rd = best_of(at_rd, b, |m| self.scorer.score(m));
                 }
             }
             // No group has a drain resistor that can work.
@@ -1665,7 +1667,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             })
             .collect(),
         rd_values: &shelf.values,
-        prefer: col.prefer,
+        scorer: Scorer::new(&p.spec, col.prefer),
         parts_floor,
         roles,
         tol: t_min,
@@ -1701,7 +1703,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             } else {
                 bounds.bound(&axes, &ranges, &mut scratch).map(|bd| {
                     (
-                        score(&p.spec, &bd.metrics, col.prefer),
+                        bounds.scorer.score(&bd.metrics),
                         bd.rd_window,
                         bd.rd_scores,
                     )
@@ -1828,7 +1830,7 @@ fn branch(
             col.effort.corner_checks += 1;
             scratch.copy_from_slice(v);
             if let Some(bd) = b.bound(axes, &r, &mut scratch) {
-                let score = score(&col.p.spec, &bd.metrics, col.prefer);
+                let score = b.scorer.score(&bd.metrics);
                 if score >= col.threshold() {
                     queue.push(Node {
                         score,

@@ -175,15 +175,9 @@ impl Scorer {
     }
 }
 
-/// `x` clamped to [0, 1] (NaN stays NaN).
+/// `x` clamped to [0, 1].
 fn unit(x: f64) -> f64 {
-    if x < 0.0 {
-        0.0
-    } else if x > 1.0 {
-        1.0
-    } else {
-        x
-    }
+    x.clamp(0.0, 1.0)
 }
 
 /// Total order: higher score first, then topology order, then values
@@ -221,6 +215,75 @@ mod tests {
             zin_ratio: 2.0,
             parts: 5,
         }
+    }
+
+    /// A stage of our own: gain 5 ± 30 %, VDD 24 V, no power limit (the
+    /// reference power is then span × 1 mA = 24 mW).
+    fn spec() -> ValidSpec {
+        crate::spec::parse(
+            "name = 'score check'\n\
+             [target]\ngain = 5.0\ntolerance = 0.3\n\
+             [supply]\nvdd = 24.0\n\
+             [load]\nrl = '47k'\n\
+             [input]\nzin_min = '100k'\n\
+             [headroom]\nvds_min = 3.0\n\
+             [device]\nfamily = 'n-jfet'\nidss = ['2m', '6m']\nvgs_off = ['-1', '-3']\n\
+             [parts]\nseries = 'E24'\n",
+        )
+        .unwrap()
+    }
+
+    // The score table in the module comment, by hand: accuracy 1 − 0.15/0.3
+    // = 0.5, spread 1 − 0.3/0.6 = 0.5, headroom 3/(0.25·24) = 0.5, power
+    // 1/(1 + 12/24) = 2/3, zin log10(√10) = 0.5, parts (9 − 7)/5 = 0.4.
+    #[test]
+    fn score_is_the_weighted_mean_of_the_documented_terms() {
+        let s = spec();
+        let m = Metrics {
+            gain_error: 0.15,
+            gain_spread: 0.3,
+            headroom_v: 3.0,
+            id_max_a: 1e-3,
+            power_w: 0.012,
+            zin_ratio: 10f64.sqrt(),
+            parts: 7,
+        };
+        let terms = [0.5, 0.5, 0.5, 2.0 / 3.0, 0.5, 0.4];
+        let mean = |w: [f64; 6]| {
+            terms.iter().zip(w).map(|(t, w)| t * w).sum::<f64>() / w.iter().sum::<f64>()
+        };
+        let cases = [
+            (Prefer::Balanced, [2.0, 2.0, 1.0, 1.0, 1.0, 1.0]),
+            (Prefer::Robust, [2.0, 8.0, 4.0, 1.0, 1.0, 1.0]),
+            (Prefer::Accurate, [8.0, 2.0, 1.0, 1.0, 1.0, 1.0]),
+            (Prefer::LowPower, [2.0, 2.0, 1.0, 4.0, 1.0, 1.0]),
+            (Prefer::FewParts, [2.0, 2.0, 1.0, 1.0, 1.0, 4.0]),
+        ];
+        for (prefer, w) in cases {
+            let got = score(&s, &m, prefer);
+            assert!(
+                (got - mean(w)).abs() < 1e-12,
+                "{prefer:?}: {got} vs {}",
+                mean(w)
+            );
+        }
+        // Balanced by hand: (1 + 1 + 0.5 + 2/3 + 0.5 + 0.4)/8 = 0.508333…
+        assert!((score(&s, &m, Prefer::Balanced) - 3.05 / 6.0).abs() < 1e-12);
+        // Each term is clamped to [0, 1]: an error beyond the tolerance and
+        // a headroom beyond a quarter of the span add nothing and all.
+        let edge = Metrics {
+            gain_error: 0.6,
+            gain_spread: 0.0,
+            headroom_v: 12.0,
+            zin_ratio: 20.0,
+            parts: 9,
+            ..m
+        };
+        let want = (0.0 + 2.0 + 1.0 + 2.0 / 3.0 + 1.0 + 0.0) / 8.0;
+        assert!((score(&s, &edge, Prefer::Balanced) - want).abs() < 1e-12);
+        // The two parts the search scores apart add up to the score.
+        let sc = Scorer::new(&s, Prefer::Robust);
+        assert_eq!(sc.score(&m), sc.gain_and_room(&m) + sc.fixed(&m));
     }
 
     #[test]

@@ -12,8 +12,10 @@
 //!    tolerance extremes that lie in every candidate's envelope. The bound
 //!    also scans the drain resistor over the shelf (with λ = 0 |gain| is
 //!    proportional to RD∥RL; with λ > 0 gm and gds are taken at their
-//!    extremes over the VDS range each RD leaves), so the gain error,
-//!    spread and headroom are bounded together for each standard RD. Few
+//!    extremes over the VDS range each RD leaves, per fold of a VDS grid,
+//!    with envelopes across folds so that the bounds rise with RD), so the
+//!    gain error, spread and headroom are bounded together for each
+//!    standard RD. Few
 //!    source-resistor points inside the gain, and slices of a wide Zin
 //!    range where a source resistance makes the level depend on it, are
 //!    bounded one by one inside the box.
@@ -327,7 +329,7 @@ fn gain_terms(strong: f64, weak: f64, g: f64) -> (f64, f64) {
 /// some point reaches at most), both rising with RD; `metrics(RD, error,
 /// spread)` the optimistic metrics with that RD. The window is the run of
 /// shelf values that can keep every point inside `[lo, hi]` with RD at
-/// most `rd_cap`. For a single configuration every RD's score bound is
+/// most `rd_cap` (`gains` is only asked for RDs up to it). For a single configuration every RD's score bound is
 /// kept; otherwise the scan stops past the bottom of the error's V (the
 /// strong side binds), where a larger RD only worsens error, spread and
 /// headroom. `None` when no RD can work. The metrics' power, Zin and
@@ -343,11 +345,10 @@ fn scan_rd(
     mut metrics: impl FnMut(f64, f64, f64) -> Metrics,
     scorer: &Scorer,
 ) -> Option<Bound> {
-    let first = first_true(values.len(), |j| gains(values[j]).1 >= lo * (1.0 - SLACK));
-    let last = first_true(values.len(), |j| {
-        let x = values[j];
-        !(x <= rd_cap * (1.0 + 1e-9) && gains(x).0 <= hi * (1.0 + SLACK))
-    });
+    // (Only RDs up to the cap are probed: `gains` need not hold above.)
+    let capped = values.partition_point(|&x| x <= rd_cap * (1.0 + 1e-9));
+    let first = first_true(capped, |j| gains(values[j]).1 >= lo * (1.0 - SLACK));
+    let last = first_true(capped, |j| gains(values[j]).0 > hi * (1.0 + SLACK));
     let window = (first.min(last), last);
     let mut best: Option<(f64, Metrics)> = None;
     let mut rd_scores = Vec::new();
@@ -389,7 +390,7 @@ const ZIN_POINTS: usize = 16;
 /// VDS points (vds_min to the span, even steps) at which λ > 0 bounds
 /// fold k, so the gm bounds of each drain resistor can use the VDS range
 /// that resistor leaves.
-const FOLDS: usize = 4;
+const FOLDS: usize = 8;
 
 /// The `j`-th VDS of the fold grid, volts: vds_min to the span in
 /// [`FOLDS`] even steps.
@@ -477,6 +478,19 @@ struct PerCase {
     /// the gds bounds), and the ceiling of VS over them.
     g_lo_up_at: [f64; FOLDS],
     g_hi_dn_at: [f64; FOLDS],
+    /// λ > 0 only, drain resistances, ohms: with RD at most
+    /// `strong_rd[j]` VDS stays at or above the j-th VDS of the fold grid
+    /// (the strong side's fold is at least j); with RD at least
+    /// `weak_rd[j]` VDS stays at or below it (the weak side's fold is at
+    /// most j).
+    strong_rd: [f64; FOLDS],
+    weak_rd: [f64; FOLDS],
+    /// λ > 0 only, shelf indices of the drain resistor: `strong_from[j]`
+    /// is the first whose strong-side fold is at most j, `weak_to[j]` the
+    /// first whose weak-side fold is below j (both folds fall as RD
+    /// rises).
+    strong_from: [usize; FOLDS],
+    weak_to: [usize; FOLDS],
     id_ceiling: f64,
     id_floor: f64,
     vs_ceiling: f64,
@@ -518,6 +532,24 @@ struct Bounds<'a> {
     src_axes: Vec<usize>,
     /// Scratch space of [`Bounds::bound`].
     work: std::cell::RefCell<Vec<PerCase>>,
+    /// Scratch space of the λ > 0 scan: per case, the envelopes of
+    /// [`Envelope`].
+    envelopes: std::cell::RefCell<Vec<Envelope>>,
+    /// Scratch space of the λ > 0 scan: per case and fold, the gds
+    /// ceiling of the strong side and floor of the weak side, siemens.
+    fold_gds: std::cell::RefCell<Vec<[(f64, f64); FOLDS]>>,
+}
+
+/// λ > 0, one case of one cell: across the folds of the fold grid the
+/// gain bounds can step down as RD rises (a lower fold, a smaller gm
+/// bound). `strong[j]` is the smallest strong-side bound over the RDs of
+/// folds 0..=j, `weak[j]` the largest weak-side bound over those of folds
+/// j.. (each fold's RDs form one run, inside which the bound rises), so
+/// that the bounds taken with them rise with RD.
+#[derive(Debug, Clone, Copy, Default)]
+struct Envelope {
+    strong: [f64; FOLDS],
+    weak: [f64; FOLDS],
 }
 
 /// Saturation current, VGS, VS and gm at a point with the drain far above
@@ -540,6 +572,22 @@ fn bias_at(t: &dyn Topology, v: &[f64], rails: &Rails, law: &SquareLaw) -> (f64,
 }
 
 impl Bounds<'_> {
+    /// λ > 0: the fold of the strong side with drain resistor `rd`: the
+    /// last VDS of the fold grid at or below the VDS floor that RD leaves,
+    /// VDD − VS ceiling − RD(1 + t)·ID ceiling (it falls as RD rises).
+    fn fold_lo(c: &PerCase, rd: f64) -> usize {
+        (1..FOLDS).take_while(|&j| rd <= c.strong_rd[j]).count()
+    }
+
+    /// λ > 0: the fold of the weak side with drain resistor `rd`: the
+    /// first VDS of the fold grid at or above the VDS ceiling that RD
+    /// leaves, VDD − VS floor − RD(1 − t)·ID floor (it falls as RD rises).
+    fn fold_hi(c: &PerCase, rd: f64) -> usize {
+        (0..FOLDS - 1)
+            .find(|&j| rd >= c.weak_rd[j])
+            .unwrap_or(FOLDS - 1)
+    }
+
     /// Optimistic metrics for every point of the box (each at least as good
     /// as any feasible point in it can reach), or `None` when no point of the
     /// box can be feasible.
@@ -682,6 +730,52 @@ impl Bounds<'_> {
                 for j in 0..FOLDS - 1 {
                     let at = fold_vds(j, vds_floor, c.span());
                     w[i].g_hi_dn_at[j] = bias_at(t, v, &c.rails, &folded(&c.law, at)).3;
+                }
+            }
+            // The RDs at which VDS's floor and ceiling cross the fold grid,
+            // and where each fold's run of shelf values starts and ends.
+            let rds = self.rd_values;
+            // (RD = room / per-ohm drop, ±∞ where no current drops it.)
+            let rd_for = |room: f64, drop: f64| {
+                if drop > 0.0 {
+                    room / drop
+                } else if room >= 0.0 {
+                    f64::INFINITY
+                } else {
+                    f64::NEG_INFINITY
+                }
+            };
+            for (c, case) in w.iter_mut().zip(cases) {
+                for j in 0..FOLDS {
+                    let vds = fold_vds(j, vds_floor, case.span());
+                    c.strong_rd[j] = if j == 0 {
+                        f64::INFINITY
+                    } else {
+                        rd_for(
+                            case.rails.vdd_v - c.vs_ceiling - vds,
+                            (1.0 + self.tol_max) * c.id_ceiling,
+                        )
+                    };
+                    c.weak_rd[j] = if j + 1 == FOLDS {
+                        f64::NEG_INFINITY
+                    } else {
+                        rd_for(
+                            case.rails.vdd_v - c.vs_floor - vds,
+                            (1.0 - self.tol_max) * c.id_floor,
+                        )
+                    };
+                }
+                for j in 0..FOLDS {
+                    c.strong_from[j] = if j + 1 == FOLDS {
+                        0
+                    } else {
+                        rds.partition_point(|&x| x <= c.strong_rd[j + 1])
+                    };
+                    c.weak_to[j] = if j == 0 {
+                        rds.len()
+                    } else {
+                        rds.partition_point(|&x| x < c.weak_rd[j - 1])
+                    };
                 }
             }
         }
@@ -1220,47 +1314,162 @@ impl Bounds<'_> {
             // A common-source stage loses |gain| to gds; elsewhere both
             // ends of the gds range are taken.
             let both_gds = t.input_at_source();
+            let rds = self.rd_values;
+            // One case's bounds with RD `x` inside fold `a` (strong side)
+            // or `b` (weak side): with that RD every point's VDS lies in
+            // [VDD − VS ceiling − RD(1+t)·ID ceiling, VDD − VS floor −
+            // RD(1−t)·ID floor], so gm lies between the grid folds just
+            // outside it and gds = λ·ID/(1 + λ·VDS) between its values at
+            // those folds. gm and gds are taken at the fold, not at the
+            // RD, so each bound rises with RD inside a fold (|gain| rises
+            // with RD at fixed gm and gds).
+            // The scan asks for RDs up to its cap only: the folds' runs
+            // are cut there.
+            let cap = rd_cap.min(zout_cap);
+            let capped = rds.partition_point(|&x| x <= cap * (1.0 + 1e-9));
+            // gds per fold: on the strong side its ceiling at the fold's
+            // largest RD (VDS's floor falls, gds's ceiling rises with RD),
+            // on the weak side its floor at the fold's smallest RD.
+            let mut fold_gds = self.fold_gds.borrow_mut();
+            fold_gds.clear();
+            fold_gds.extend(w.iter().zip(cases).map(|(c, case)| {
+                let l = case.law.lambda_per_v;
+                let vdd = case.rails.vdd_v;
+                let mut out = [(c.gds_hi, c.gds_lo); FOLDS];
+                for (j, o) in out.iter_mut().enumerate() {
+                    let end = if j == 0 {
+                        rds.len()
+                    } else {
+                        c.strong_from[j - 1]
+                    }
+                    .min(capped);
+                    if c.strong_from[j] < end {
+                        let x = rds[end - 1];
+                        let vds_lo = (vdd - c.vs_ceiling - x * (1.0 + self.tol_max) * c.id_ceiling)
+                            .max(vds_floor);
+                        o.0 = (l * c.id_ceiling / (1.0 + l * vds_lo)).min(c.gds_hi);
+                    }
+                    let start = if j + 1 == FOLDS { 0 } else { c.weak_to[j + 1] };
+                    if start < c.weak_to[j].min(capped) {
+                        let x = rds[start];
+                        let vds_hi = (vdd - c.vs_floor - x * (1.0 - self.tol_max) * c.id_floor)
+                            .min(case.span());
+                        o.1 = (l * c.id_floor / (1.0 + l * vds_hi)).max(c.gds_lo);
+                    }
+                }
+                out
+            }));
+            let fold_gds = &fold_gds;
+            let strong_at =
+                |v: &mut [f64], i: usize, x: f64, a: usize, group: &[[usize; MAX_SOURCES]]| {
+                    let c = &w[i];
+                    let g_floor = c.g_lo_up_at[a];
+                    let gds_hi = fold_gds[i][a].0;
+                    let x_up = x * (1.0 + tol);
+                    let mut lb = f64::INFINITY;
+                    for cmb in group {
+                        let mut up = gain_at_g(v, g_floor, gds_hi, x_up, cmb, 1.0 - tol).0;
+                        if both_gds {
+                            // |gain| is monotone in gds (a ratio of linear
+                            // terms) but its direction is not known here.
+                            up = up.min(gain_at_g(v, g_floor, c.gds_lo, x_up, cmb, 1.0 - tol).0);
+                        }
+                        lb = lb.min(up);
+                    }
+                    lb
+                };
+            let weak_at =
+                |v: &mut [f64], i: usize, x: f64, b: usize, group: &[[usize; MAX_SOURCES]]| {
+                    let c = &w[i];
+                    let g_ceiling = c.g_hi_dn_at[b];
+                    let gds_lo = fold_gds[i][b].1;
+                    let x_dn = x * (1.0 - tol);
+                    let mut ub = 0.0f64;
+                    for cmb in group {
+                        let mut dn = gain_at_g(v, g_ceiling, gds_lo, x_dn, cmb, 1.0 + tol).0;
+                        if both_gds {
+                            dn = dn.max(gain_at_g(v, g_ceiling, c.gds_hi, x_dn, cmb, 1.0 + tol).0);
+                        }
+                        ub = ub.max(dn);
+                    }
+                    ub
+                };
+            let mut envelopes = self.envelopes.borrow_mut();
+            envelopes.resize(n, Envelope::default());
             for (group, &(share_lo, share_hi, zin_ratio)) in cells() {
+                for e in envelopes.iter_mut() {
+                    *e = Envelope {
+                        strong: [f64::NAN; FOLDS],
+                        weak: [f64::NAN; FOLDS],
+                    };
+                }
+                // Fold `a`'s smallest strong bound is at its first RD, fold
+                // `b`'s largest weak bound at its last (∞ and 0 for a fold
+                // with no RD up to the cap).
+                let fold_min = |v: &mut [f64], i: usize, a: usize| {
+                    let c = &w[i];
+                    let end = if a == 0 {
+                        rds.len()
+                    } else {
+                        c.strong_from[a - 1]
+                    };
+                    let k = c.strong_from[a];
+                    if k < end.min(capped) {
+                        strong_at(v, i, rds[k], a, group)
+                    } else {
+                        f64::INFINITY
+                    }
+                };
+                let fold_max = |v: &mut [f64], i: usize, b: usize| {
+                    let c = &w[i];
+                    let start = if b + 1 == FOLDS { 0 } else { c.weak_to[b + 1] };
+                    let end = c.weak_to[b].min(capped);
+                    if start < end {
+                        weak_at(v, i, rds[end - 1], b, group)
+                    } else {
+                        0.0
+                    }
+                };
+                // Every candidate with RD `x`: the strong side reaches at
+                // least the smallest strong bound over the RDs from x up to
+                // the cap, the weak side at most the largest weak bound
+                // over the RDs up to x (both then rise with RD, as the scan
+                // needs). The folds' extremes are taken when first needed.
+                let envelopes = &mut envelopes;
                 let mut gains = |x: f64| {
                     let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
-                    for (c, case) in w.iter().zip(cases) {
-                        // With this RD every point's VDS lies in
-                        // [VDD − VS ceiling − RD(1+t)·ID ceiling,
-                        //  VDD − VS floor − RD(1−t)·ID floor]: gm between the
-                        // grid folds just outside it, gds = λ·ID/(1 + λ·VDS)
-                        // between its ends there.
-                        let (span_c, l) = (case.span(), case.law.lambda_per_v);
-                        let rails = &case.rails;
-                        let vds_lo =
-                            (rails.vdd_v - c.vs_ceiling - x * (1.0 + self.tol_max) * c.id_ceiling)
-                                .max(vds_floor);
-                        let vds_hi =
-                            (rails.vdd_v - c.vs_floor - x * (1.0 - self.tol_max) * c.id_floor)
-                                .min(span_c);
-                        let grid = |j: usize| fold_vds(j, vds_floor, span_c);
-                        let a = (0..FOLDS).rev().find(|&j| grid(j) <= vds_lo).unwrap_or(0);
-                        let b = (0..FOLDS).find(|&j| grid(j) >= vds_hi).unwrap_or(FOLDS - 1);
-                        let (g_floor, g_ceiling) = (c.g_lo_up_at[a], c.g_hi_dn_at[b]);
-                        let gds_hi = (l * c.id_ceiling / (1.0 + l * vds_lo)).min(c.gds_hi);
-                        let gds_lo = (l * c.id_floor / (1.0 + l * vds_hi)).max(c.gds_lo);
-                        let (mut lb_i, mut ub_i) = (f64::INFINITY, 0.0f64);
-                        for cmb in group {
-                            let (x_up, x_dn) = (x * (1.0 + tol), x * (1.0 - tol));
-                            let mut up = gain_at_g(v, g_floor, gds_hi, x_up, cmb, 1.0 - tol).0;
-                            let mut dn = gain_at_g(v, g_ceiling, gds_lo, x_dn, cmb, 1.0 + tol).0;
-                            if both_gds {
-                                // |gain| is monotone in gds (a ratio of
-                                // linear terms) but its direction is not
-                                // known here.
-                                up = up.min(gain_at_g(v, g_floor, gds_lo, x_up, cmb, 1.0 - tol).0);
-                                dn =
-                                    dn.max(gain_at_g(v, g_ceiling, gds_hi, x_dn, cmb, 1.0 + tol).0);
+                    for (i, c) in w.iter().enumerate() {
+                        let (a, b) = (Self::fold_lo(c, x), Self::fold_hi(c, x));
+                        let mut lb = strong_at(v, i, x, a, group);
+                        if a > 0 {
+                            let e = &mut envelopes[i].strong;
+                            if e[a - 1].is_nan() {
+                                let mut m = f64::INFINITY;
+                                for (j, slot) in e.iter_mut().enumerate().take(a) {
+                                    if slot.is_nan() {
+                                        *slot = m.min(fold_min(v, i, j));
+                                    }
+                                    m = *slot;
+                                }
                             }
-                            lb_i = lb_i.min(up);
-                            ub_i = ub_i.max(dn);
+                            lb = lb.min(e[a - 1]);
                         }
-                        strong = strong.max(lb_i * share_lo);
-                        weak = weak.min(ub_i * share_hi);
+                        let mut ub = weak_at(v, i, x, b, group);
+                        if b + 1 < FOLDS {
+                            let e = &mut envelopes[i].weak;
+                            if e[b + 1].is_nan() {
+                                let mut m = 0.0f64;
+                                for j in (b + 1..FOLDS).rev() {
+                                    if e[j].is_nan() {
+                                        e[j] = m.max(fold_max(v, i, j));
+                                    }
+                                    m = e[j];
+                                }
+                            }
+                            ub = ub.max(e[b + 1]);
+                        }
+                        strong = strong.max(lb * share_lo);
+                        weak = weak.min(ub * share_hi);
                     }
                     (strong, weak)
                 };
@@ -1684,6 +1893,8 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             })
             .collect(),
         work: std::cell::RefCell::new(Vec::new()),
+        envelopes: std::cell::RefCell::new(Vec::new()),
+        fold_gds: std::cell::RefCell::new(Vec::new()),
     };
     let mut oidx = vec![0usize; outer.len()];
     loop {
@@ -1701,13 +1912,9 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             let root = if axes.is_empty() {
                 Some((f64::INFINITY, None, Vec::new()))
             } else {
-                bounds.bound(&axes, &ranges, &mut scratch).map(|bd| {
-                    (
-                        bounds.scorer.score(&bd.metrics),
-                        bd.rd_window,
-                        bd.rd_scores,
-                    )
-                })
+                bounds
+                    .bound(&axes, &ranges, &mut scratch)
+                    .map(|bd| (bounds.scorer.score(&bd.metrics), bd.rd_window, bd.rd_scores))
             };
             if let Some((score, rd_window, rd_scores)) = root {
                 let root = Node {

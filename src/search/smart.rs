@@ -501,6 +501,30 @@ struct PerCase {
     id_at: [f64; 2],
 }
 
+impl PerCase {
+    /// λ > 0: the shelf indices whose strong-side fold is `j`, cut at
+    /// index `capped` (the fold falls as RD rises: one run per fold).
+    fn strong_run(&self, j: usize, capped: usize) -> std::ops::Range<usize> {
+        let end = if j == 0 {
+            usize::MAX
+        } else {
+            self.strong_from[j - 1]
+        };
+        self.strong_from[j]..end.min(capped)
+    }
+
+    /// λ > 0: the shelf indices whose weak-side fold is `j`, cut at index
+    /// `capped`.
+    fn weak_run(&self, j: usize, capped: usize) -> std::ops::Range<usize> {
+        let start = if j + 1 == FOLDS {
+            0
+        } else {
+            self.weak_to[j + 1]
+        };
+        start..self.weak_to[j].min(capped)
+    }
+}
+
 impl Case {
     /// Supply span, volts.
     fn span(&self) -> f64 {
@@ -572,6 +596,19 @@ fn bias_at(t: &dyn Topology, v: &[f64], rails: &Rails, law: &SquareLaw) -> (f64,
 }
 
 impl Bounds<'_> {
+    /// λ > 0: the VDS floor of every point with drain resistor `rd`,
+    /// VDD − VS ceiling − RD(1 + t)·ID ceiling, at least vds_min; volts.
+    fn vds_lo(&self, c: &PerCase, case: &Case, rd: f64) -> f64 {
+        (case.rails.vdd_v - c.vs_ceiling - rd * (1.0 + self.tol_max) * c.id_ceiling)
+            .max(self.p.spec.vds_min_v)
+    }
+
+    /// λ > 0: the VDS ceiling of every point with drain resistor `rd`,
+    /// VDD − VS floor − RD(1 − t)·ID floor, at most the span; volts.
+    fn vds_hi(&self, c: &PerCase, case: &Case, rd: f64) -> f64 {
+        (case.rails.vdd_v - c.vs_floor - rd * (1.0 - self.tol_max) * c.id_floor).min(case.span())
+    }
+
     /// λ > 0: the fold of the strong side with drain resistor `rd`: the
     /// last VDS of the fold grid at or below the VDS floor that RD leaves,
     /// VDD − VS ceiling − RD(1 + t)·ID ceiling (it falls as RD rises).
@@ -1315,14 +1352,6 @@ impl Bounds<'_> {
             // ends of the gds range are taken.
             let both_gds = t.input_at_source();
             let rds = self.rd_values;
-            // One case's bounds with RD `x` inside fold `a` (strong side)
-            // or `b` (weak side): with that RD every point's VDS lies in
-            // [VDD − VS ceiling − RD(1+t)·ID ceiling, VDD − VS floor −
-            // RD(1−t)·ID floor], so gm lies between the grid folds just
-            // outside it and gds = λ·ID/(1 + λ·VDS) between its values at
-            // those folds. gm and gds are taken at the fold, not at the
-            // RD, so each bound rises with RD inside a fold (|gain| rises
-            // with RD at fixed gm and gds).
             // The scan asks for RDs up to its cap only: the folds' runs
             // are cut there.
             let cap = rd_cap.min(zout_cap);
@@ -1334,31 +1363,27 @@ impl Bounds<'_> {
             fold_gds.clear();
             fold_gds.extend(w.iter().zip(cases).map(|(c, case)| {
                 let l = case.law.lambda_per_v;
-                let vdd = case.rails.vdd_v;
                 let mut out = [(c.gds_hi, c.gds_lo); FOLDS];
                 for (j, o) in out.iter_mut().enumerate() {
-                    let end = if j == 0 {
-                        rds.len()
-                    } else {
-                        c.strong_from[j - 1]
+                    if let Some(k) = c.strong_run(j, capped).last() {
+                        let vds = self.vds_lo(c, case, rds[k]);
+                        o.0 = (l * c.id_ceiling / (1.0 + l * vds)).min(c.gds_hi);
                     }
-                    .min(capped);
-                    if c.strong_from[j] < end {
-                        let x = rds[end - 1];
-                        let vds_lo = (vdd - c.vs_ceiling - x * (1.0 + self.tol_max) * c.id_ceiling)
-                            .max(vds_floor);
-                        o.0 = (l * c.id_ceiling / (1.0 + l * vds_lo)).min(c.gds_hi);
-                    }
-                    let start = if j + 1 == FOLDS { 0 } else { c.weak_to[j + 1] };
-                    if start < c.weak_to[j].min(capped) {
-                        let x = rds[start];
-                        let vds_hi = (vdd - c.vs_floor - x * (1.0 - self.tol_max) * c.id_floor)
-                            .min(case.span());
-                        o.1 = (l * c.id_floor / (1.0 + l * vds_hi)).max(c.gds_lo);
+                    if let Some(k) = c.weak_run(j, capped).next() {
+                        let vds = self.vds_hi(c, case, rds[k]);
+                        o.1 = (l * c.id_floor / (1.0 + l * vds)).max(c.gds_lo);
                     }
                 }
                 out
             }));
+            // One case's bounds with RD `x` inside fold `a` (strong side)
+            // or `b` (weak side): with that RD every point's VDS lies in
+            // [VDD − VS ceiling − RD(1+t)·ID ceiling, VDD − VS floor −
+            // RD(1−t)·ID floor], so gm lies between the gm bounds of the
+            // grid folds just outside it, and gds within the fold's gds
+            // bounds above. Both are taken per fold, not per RD, so each
+            // bound rises with RD inside a fold (|gain| rises with RD at
+            // fixed gm and gds).
             let fold_gds = &fold_gds;
             let strong_at =
                 |v: &mut [f64], i: usize, x: f64, a: usize, group: &[[usize; MAX_SOURCES]]| {
@@ -1407,28 +1432,14 @@ impl Bounds<'_> {
                 // `b`'s largest weak bound at its last (∞ and 0 for a fold
                 // with no RD up to the cap).
                 let fold_min = |v: &mut [f64], i: usize, a: usize| {
-                    let c = &w[i];
-                    let end = if a == 0 {
-                        rds.len()
-                    } else {
-                        c.strong_from[a - 1]
-                    };
-                    let k = c.strong_from[a];
-                    if k < end.min(capped) {
-                        strong_at(v, i, rds[k], a, group)
-                    } else {
-                        f64::INFINITY
-                    }
+                    w[i].strong_run(a, capped)
+                        .next()
+                        .map_or(f64::INFINITY, |k| strong_at(v, i, rds[k], a, group))
                 };
                 let fold_max = |v: &mut [f64], i: usize, b: usize| {
-                    let c = &w[i];
-                    let start = if b + 1 == FOLDS { 0 } else { c.weak_to[b + 1] };
-                    let end = c.weak_to[b].min(capped);
-                    if start < end {
-                        weak_at(v, i, rds[end - 1], b, group)
-                    } else {
-                        0.0
-                    }
+                    w[i].weak_run(b, capped)
+                        .last()
+                        .map_or(0.0, |k| weak_at(v, i, rds[k], b, group))
                 };
                 // Every candidate with RD `x`: the strong side reaches at
                 // least the smallest strong bound over the RDs from x up to

@@ -137,23 +137,22 @@ impl Ranged {
         Ranged { v, blocks }
     }
 
-    /// Smallest and largest value over indices `s..e`.
+    /// Smallest and largest value over indices `s..e` (the values are
+    /// finite: plain comparisons).
     fn range(&self, s: usize, e: usize) -> (f64, f64) {
-        let (mut lo, mut hi) = (f64::INFINITY, 0.0f64);
-        let mut i = s;
-        while i < e {
-            if i % BLOCK == 0 && i + BLOCK <= e {
-                let (a, b) = self.blocks[i / BLOCK];
-                lo = lo.min(a);
-                hi = hi.max(b);
-                i += BLOCK;
-            } else {
-                lo = lo.min(self.v[i]);
-                hi = hi.max(self.v[i]);
-                i += 1;
-            }
+        let take = |(lo, hi): (f64, f64), (a, b): (f64, f64)| {
+            (if a < lo { a } else { lo }, if b > hi { b } else { hi })
+        };
+        let each = |r: (f64, f64), v: &[f64]| v.iter().fold(r, |r, &x| take(r, (x, x)));
+        let empty = (f64::INFINITY, 0.0f64);
+        // Whole blocks `b0..b1` inside the range, single values around them.
+        let (b0, b1) = (s.div_ceil(BLOCK), e / BLOCK);
+        if b0 >= b1 {
+            return each(empty, &self.v[s..e]);
         }
-        (lo, hi)
+        let r = each(empty, &self.v[s..b0 * BLOCK]);
+        let r = self.blocks[b0..b1].iter().fold(r, |r, &b| take(r, b));
+        each(r, &self.v[b1 * BLOCK..e])
     }
 }
 

@@ -1181,15 +1181,17 @@ impl Bounds<'_> {
             m.gain_error = err;
             m.gain_spread = spread;
             let rd_up = x * (1.0 + self.tol);
-            m.headroom_v = (0..n)
-                .map(|i| {
-                    let c = &w[i];
-                    let vdd = cases[i].rails.vdd_v;
-                    (vdd - c.vs_at[0] - rd_up * c.id_at[0])
-                        .min(vdd - c.vs_at[1] - rd_up * c.id_at[1])
-                })
-                .fold(f64::INFINITY, f64::min)
-                - s.vds_min_v;
+            // (Plain comparisons: this runs for every RD of every scan.)
+            let mut room = f64::INFINITY;
+            for (c, case) in w.iter().zip(cases) {
+                for j in 0..2 {
+                    let x = case.rails.vdd_v - c.vs_at[j] - rd_up * c.id_at[j];
+                    if x < room {
+                        room = x;
+                    }
+                }
+            }
+            m.headroom_v = room - s.vds_min_v;
             m.zin_ratio = zin_ratio;
             m
         };

@@ -328,10 +328,11 @@ fn gain_terms(strong: f64, weak: f64, g: f64) -> (f64, f64) {
 /// some point reaches at most), both rising with RD; `metrics(RD, error,
 /// spread)` the optimistic metrics with that RD. The window is the run of
 /// shelf values that can keep every point inside `[lo, hi]` with RD at
-/// most `rd_cap` (`gains` is only asked for RDs up to it). For a single configuration every RD's score bound is
-/// kept; otherwise the scan stops past the bottom of the error's V (the
-/// strong side binds), where a larger RD only worsens error, spread and
-/// headroom. `None` when no RD can work. The metrics' power, Zin and
+/// most `rd_cap` (`gains` is only asked for RDs up to it). For a single
+/// configuration the window and every RD's score bound in it are kept;
+/// otherwise the scan stops past the bottom of the error's V (the strong
+/// side binds), where a larger RD only worsens error, spread and
+/// headroom, or at the window's end. `None` when no RD can work. The metrics' power, Zin and
 /// parts must not depend on RD: their part of the score is taken once.
 #[allow(clippy::too_many_arguments)]
 fn scan_rd(
@@ -347,13 +348,24 @@ fn scan_rd(
     // (Only RDs up to the cap are probed: `gains` need not hold above.)
     let capped = values.partition_point(|&x| x <= rd_cap * (1.0 + 1e-9));
     let first = first_true(capped, |j| gains(values[j]).1 >= lo * (1.0 - SLACK));
-    let last = first_true(capped, |j| gains(values[j]).0 > hi * (1.0 + SLACK));
-    let window = (first.min(last), last);
+    let above = |strong: f64| strong > hi * (1.0 + SLACK);
+    // A box needs no window (only a single configuration's is used): its
+    // scan stops where the strong side first passes `hi`, the window's end.
+    let window = if single {
+        let last = first_true(capped, |j| above(gains(values[j]).0));
+        Some((first.min(last), last))
+    } else {
+        None
+    };
     let mut best: Option<(f64, Metrics)> = None;
     let mut rd_scores = Vec::new();
     let mut fixed = None;
-    for &x in &values[window.0..window.1] {
+    let end = window.map_or(capped, |w| w.1);
+    for &x in &values[window.map_or(first, |w| w.0)..end] {
         let (strong, weak) = gains(x);
+        if !single && above(strong) {
+            break;
+        }
         let (err, spread) = gain_terms(strong, weak, g);
         let m = metrics(x, err, spread);
         let sc = scorer.gain_and_room(&m) + *fixed.get_or_insert_with(|| scorer.fixed(&m));
@@ -369,7 +381,7 @@ fn scan_rd(
     }
     best.map(|(_, metrics)| Bound {
         metrics,
-        rd_window: Some(window),
+        rd_window: window,
         rd_scores,
     })
 }
@@ -435,8 +447,8 @@ fn best_of(acc: Option<Bound>, b: Bound, score_of: impl Fn(&Metrics) -> f64) -> 
 struct Bound {
     /// Optimistic metrics: no point of the box does better on any of them.
     metrics: Metrics,
-    /// Shelf indices `[first, last)` of the drain resistors that can work
-    /// anywhere in the box, when the drain resistor was scanned.
+    /// For a single configuration whose drain resistor was scanned: shelf
+    /// indices `[first, last)` of the drain resistors that can work.
     rd_window: Option<(usize, usize)>,
     /// For a single configuration: the score bound of each drain resistor
     /// in the window (empty otherwise).
@@ -1972,7 +1984,8 @@ struct Node {
     seq: u64,
     /// Index range `[start, end)` on each axis.
     ranges: Vec<(usize, usize)>,
-    /// The drain resistor's shelf window, when the bound scanned it.
+    /// A single configuration's drain resistor window, when the bound
+    /// scanned it.
     rd_window: Option<(usize, usize)>,
     /// Score bound of each drain resistor in the window (single
     /// configurations only).

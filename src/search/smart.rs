@@ -332,8 +332,9 @@ fn gain_terms(strong: f64, weak: f64, g: f64) -> (f64, f64) {
 /// configuration the window and every RD's score bound in it are kept;
 /// otherwise the scan stops past the bottom of the error's V (the strong
 /// side binds), where a larger RD only worsens error, spread and
-/// headroom, or at the window's end. `None` when no RD can work. The metrics' power, Zin and
-/// parts must not depend on RD: their part of the score is taken once.
+/// headroom, or at the window's end. `None` when no RD can work. The
+/// metrics' power, Zin and parts must not depend on RD: their part of the
+/// score is taken once.
 #[allow(clippy::too_many_arguments)]
 fn scan_rd(
     values: &[f64],
@@ -580,11 +581,48 @@ struct Bounds<'a> {
 /// bound). `strong[j]` is the smallest strong-side bound over the RDs of
 /// folds 0..=j, `weak[j]` the largest weak-side bound over those of folds
 /// j.. (each fold's RDs form one run, inside which the bound rises), so
-/// that the bounds taken with them rise with RD.
+/// that the bounds taken with them rise with RD. NaN marks a value not
+/// taken yet: each is taken when first needed.
 #[derive(Debug, Clone, Copy, Default)]
 struct Envelope {
     strong: [f64; FOLDS],
     weak: [f64; FOLDS],
+}
+
+impl Envelope {
+    /// No value taken yet.
+    fn unknown() -> Envelope {
+        Envelope {
+            strong: [f64::NAN; FOLDS],
+            weak: [f64::NAN; FOLDS],
+        }
+    }
+
+    /// `strong[a]`, taking the missing entries up to it from `fold_min`
+    /// (a fold's smallest strong bound).
+    fn strong_to(&mut self, a: usize, mut fold_min: impl FnMut(usize) -> f64) -> f64 {
+        let mut m = f64::INFINITY;
+        for (j, slot) in self.strong.iter_mut().enumerate().take(a + 1) {
+            if slot.is_nan() {
+                *slot = m.min(fold_min(j));
+            }
+            m = *slot;
+        }
+        m
+    }
+
+    /// `weak[b]`, taking the missing entries from the top fold down to it
+    /// from `fold_max` (a fold's largest weak bound).
+    fn weak_from(&mut self, b: usize, mut fold_max: impl FnMut(usize) -> f64) -> f64 {
+        let mut m = 0.0f64;
+        for j in (b..FOLDS).rev() {
+            if self.weak[j].is_nan() {
+                self.weak[j] = m.max(fold_max(j));
+            }
+            m = self.weak[j];
+        }
+        m
+    }
 }
 
 /// Saturation current, VGS, VS and gm at a point with the drain far above
@@ -1435,12 +1473,7 @@ impl Bounds<'_> {
             let mut envelopes = self.envelopes.borrow_mut();
             envelopes.resize(n, Envelope::default());
             for (group, &(share_lo, share_hi, zin_ratio)) in cells() {
-                for e in envelopes.iter_mut() {
-                    *e = Envelope {
-                        strong: [f64::NAN; FOLDS],
-                        weak: [f64::NAN; FOLDS],
-                    };
-                }
+                envelopes.fill(Envelope::unknown());
                 // Fold `a`'s smallest strong bound is at its first RD, fold
                 // `b`'s largest weak bound at its last (∞ and 0 for a fold
                 // with no RD up to the cap).
@@ -1466,31 +1499,11 @@ impl Bounds<'_> {
                         let (a, b) = (Self::fold_lo(c, x), Self::fold_hi(c, x));
                         let mut lb = strong_at(v, i, x, a, group);
                         if a > 0 {
-                            let e = &mut envelopes[i].strong;
-                            if e[a - 1].is_nan() {
-                                let mut m = f64::INFINITY;
-                                for (j, slot) in e.iter_mut().enumerate().take(a) {
-                                    if slot.is_nan() {
-                                        *slot = m.min(fold_min(v, i, j));
-                                    }
-                                    m = *slot;
-                                }
-                            }
-                            lb = lb.min(e[a - 1]);
+                            lb = lb.min(envelopes[i].strong_to(a - 1, |j| fold_min(v, i, j)));
                         }
                         let mut ub = weak_at(v, i, x, b, group);
                         if b + 1 < FOLDS {
-                            let e = &mut envelopes[i].weak;
-                            if e[b + 1].is_nan() {
-                                let mut m = 0.0f64;
-                                for j in (b + 1..FOLDS).rev() {
-                                    if e[j].is_nan() {
-                                        e[j] = m.max(fold_max(v, i, j));
-                                    }
-                                    m = e[j];
-                                }
-                            }
-                            ub = ub.max(e[b + 1]);
+                            ub = ub.max(envelopes[i].weak_from(b + 1, |j| fold_max(v, i, j)));
                         }
                         strong = strong.max(lb * share_lo);
                         weak = weak.min(ub * share_hi);

@@ -1954,14 +1954,14 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
                     .map(|bd| (bounds.scorer.score(&bd.metrics), bd.rd_window, bd.rd_scores))
             };
             if let Some((score, rd_window, rd_scores)) = root {
+                let mut whole = [(0, 0); MAX_AXES];
+                whole[..ranges.len()].copy_from_slice(&ranges);
                 let root = Node {
-                    score,
-                    seq: 0,
-                    ranges: ranges.clone(),
+                    ranges: whole,
                     rd_window,
                     rd_scores,
                 };
-                branch(col, &bounds, &axes, root, &mut v, shelf);
+                branch(col, &bounds, &axes, (score, root), &mut v, shelf);
             }
         }
         let mut k = outer.len();
@@ -1989,14 +1989,14 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
     }
 }
 
+/// Most axes a box has: the divider and the source resistors.
+const MAX_AXES: usize = 1 + MAX_SOURCES;
+
 /// A box waiting in the branch-and-bound queue.
 struct Node {
-    /// Score of the box's optimistic metrics.
-    score: f64,
-    /// Order of creation (ties go to the older box: deterministic).
-    seq: u64,
-    /// Index range `[start, end)` on each axis.
-    ranges: Vec<(usize, usize)>,
+    /// Index range `[start, end)` on each axis (the first `axes.len()`
+    /// are used; a fixed array, so a box allocates nothing).
+    ranges: [(usize, usize); MAX_AXES],
     /// A single configuration's drain resistor window, when the bound
     /// scanned it.
     rd_window: Option<(usize, usize)>,
@@ -2005,20 +2005,83 @@ struct Node {
     rd_scores: Vec<f64>,
 }
 
-impl PartialEq for Node {
+/// A queue entry: the box's score bound, its order of creation and its
+/// slot in the queue's arena (the heap moves these 24 bytes, not boxes).
+struct Queued {
+    /// Score of the box's optimistic metrics.
+    score: f64,
+    /// Order of creation (ties go to the older box: deterministic).
+    seq: u64,
+    slot: usize,
+}
+
+impl PartialEq for Queued {
     fn eq(&self, o: &Self) -> bool {
         self.cmp(o) == std::cmp::Ordering::Equal
     }
 }
-impl Eq for Node {}
-impl PartialOrd for Node {
+impl Eq for Queued {}
+impl PartialOrd for Queued {
     fn partial_cmp(&self, o: &Self) -> Option<std::cmp::Ordering> {
         Some(self.cmp(o))
     }
 }
-impl Ord for Node {
+impl Ord for Queued {
     fn cmp(&self, o: &Self) -> std::cmp::Ordering {
         self.score.total_cmp(&o.score).then(o.seq.cmp(&self.seq))
+    }
+}
+
+/// The boxes of the queue, best bound first, in slots reused once taken.
+struct Queue {
+    heap: std::collections::BinaryHeap<Queued>,
+    slots: Vec<Node>,
+    free: Vec<usize>,
+    seq: u64,
+}
+
+impl Queue {
+    fn new() -> Queue {
+        Queue {
+            heap: std::collections::BinaryHeap::new(),
+            slots: Vec::new(),
+            free: Vec::new(),
+            seq: 0,
+        }
+    }
+
+    fn push(&mut self, score: f64, node: Node) {
+        let slot = match self.free.pop() {
+            Some(i) => {
+                self.slots[i] = node;
+                i
+            }
+            None => {
+                self.slots.push(node);
+                self.slots.len() - 1
+            }
+        };
+        self.heap.push(Queued {
+            score,
+            seq: self.seq,
+            slot,
+        });
+        self.seq += 1;
+    }
+
+    /// The best box and its score bound; its slot is free again.
+    fn pop(&mut self) -> Option<(f64, Node)> {
+        let q = self.heap.pop()?;
+        self.free.push(q.slot);
+        let node = std::mem::replace(
+            &mut self.slots[q.slot],
+            Node {
+                ranges: [(0, 0); MAX_AXES],
+                rd_window: None,
+                rd_scores: Vec::new(),
+            },
+        );
+        Some((q.score, node))
     }
 }
 
@@ -2030,22 +2093,22 @@ fn branch(
     col: &mut Collector<'_>,
     b: &Bounds<'_>,
     axes: &[Axis],
-    root: Node,
+    root: (f64, Node),
     v: &mut [f64],
     shelf: &Shelf,
 ) {
     // The box holds every part but the drain resistor (drain feedback,
     // which has no box, never branches).
     let run_k = b.rd;
-    let mut seq = 1u64;
-    let mut queue = std::collections::BinaryHeap::new();
-    queue.push(root);
+    let n_axes = axes.len();
+    let mut queue = Queue::new();
+    queue.push(root.0, root.1);
     let mut scratch = v.to_vec();
-    while let Some(node) = queue.pop() {
-        if node.score < col.threshold() {
+    while let Some((score, node)) = queue.pop() {
+        if score < col.threshold() {
             break;
         }
-        let ranges = node.ranges;
+        let ranges = &node.ranges[..n_axes];
         let widest = (0..ranges.len())
             .filter(|&i| ranges[i].1 - ranges[i].0 > 1)
             .max_by(|&i, &j| {
@@ -2055,7 +2118,7 @@ fn branch(
                     .then(j.cmp(&i))
             });
         let Some(i) = widest else {
-            for (a, r) in axes.iter().zip(&ranges) {
+            for (a, r) in axes.iter().zip(ranges) {
                 for (k, &pos) in a.positions.iter().enumerate() {
                     v[pos] = a.option(r.0)[k];
                 }
@@ -2070,21 +2133,21 @@ fn branch(
         let (s, e) = ranges[i];
         let mid = s + (e - s) / 2;
         for half in [(s, mid), (mid, e)] {
-            let mut r = ranges.clone();
+            let mut r = node.ranges;
             r[i] = half;
             col.effort.corner_checks += 1;
             scratch.copy_from_slice(v);
-            if let Some(bd) = b.bound(axes, &r, &mut scratch) {
+            if let Some(bd) = b.bound(axes, &r[..n_axes], &mut scratch) {
                 let score = b.scorer.score(&bd.metrics);
                 if score >= col.threshold() {
-                    queue.push(Node {
+                    queue.push(
                         score,
-                        seq,
-                        ranges: r,
-                        rd_window: bd.rd_window,
-                        rd_scores: bd.rd_scores,
-                    });
-                    seq += 1;
+                        Node {
+                            ranges: r,
+                            rd_window: bd.rd_window,
+                            rd_scores: bd.rd_scores,
+                        },
+                    );
                 }
             }
         }

@@ -95,6 +95,12 @@ pub struct Options {
     pub method: Method,
     /// Largest number of combinations the exhaustive search accepts.
     pub budget: f64,
+    /// λ > 0, default search: the points of the VDS fold grid of the box
+    /// bounds, 2 to 24 (values outside are taken to the nearer end).
+    /// `None` chooses one per 32 shelf values, 8 to 24. Every choice gives
+    /// the same designs, only the work differs; the property tests use it
+    /// to cover the finer grids that long shelves get.
+    pub fold_points: Option<usize>,
 }
 
 impl Default for Options {
@@ -106,6 +112,7 @@ impl Default for Options {
             per_topology: 10,
             method: Method::Smart,
             budget: 1e9,
+            fold_points: None,
         }
     }
 }
@@ -295,6 +302,8 @@ pub(crate) struct Collector<'a> {
     pub(crate) t: &'static dyn Topology,
     pub(crate) index: usize,
     pub(crate) prefer: Prefer,
+    /// The fold grid's points, when set ([`Options::fold_points`]).
+    pub(crate) fold_points: Option<usize>,
     pub(crate) keep: usize,
     pub(crate) designs: Vec<Design>,
     pub(crate) miss: MissTracker,
@@ -461,6 +470,7 @@ fn search_one(
         t,
         index,
         prefer: opts.prefer,
+        fold_points: opts.fold_points,
         keep: opts.per_topology.max(opts.top).max(1),
         designs: Vec::new(),
         miss: MissTracker::default(),

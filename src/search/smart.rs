@@ -399,15 +399,33 @@ const ZIN_SLICES: usize = 6;
 /// (at least [`ZIN_SLICES`]).
 const ZIN_POINTS: usize = 16;
 
-/// VDS points (vds_min to the span, even steps) at which λ > 0 bounds
-/// fold k, so the gm bounds of each drain resistor can use the VDS range
-/// that resistor leaves.
-const FOLDS: usize = 8;
+/// Most VDS points (vds_min to the span, even steps) at which λ > 0
+/// bounds fold k, so the gm bounds of each drain resistor can use the VDS
+/// range that resistor leaves. A search uses one point per
+/// [`SHELF_PER_FOLD`] shelf values, from 8 to this many: a fold's gm and
+/// gds bounds hold over all of its drain resistors, so a long shelf
+/// (E96 over 1 Ω–10 MΩ: 673 values) needs finer folds, while each point
+/// costs two solves per case in every bound. (Measured on the examples
+/// with λ = 0.02: on E24 shelves 8 points were fastest; on E96 over
+/// 1 Ω–10 MΩ 16–32 points took 2–3× fewer bounds and half the time of 8.)
+const FOLDS: usize = 24;
 
-/// The `j`-th VDS of the fold grid, volts: vds_min to the span in
-/// [`FOLDS`] even steps.
-fn fold_vds(j: usize, vds_min: f64, span: f64) -> f64 {
-    vds_min + j as f64 / (FOLDS - 1) as f64 * (span - vds_min)
+/// Shelf values per point of the fold grid (see [`FOLDS`]).
+const SHELF_PER_FOLD: usize = 32;
+
+/// The points of the fold grid: `set` taken into 2..=[`FOLDS`], or else
+/// one per [`SHELF_PER_FOLD`] of the shelf's `values`, 8 to [`FOLDS`].
+fn fold_points(set: Option<usize>, values: usize) -> usize {
+    match set {
+        Some(n) => n.clamp(2, FOLDS),
+        None => (values / SHELF_PER_FOLD).clamp(8, FOLDS),
+    }
+}
+
+/// The `j`-th VDS of a fold grid of `n` points, volts: vds_min to the
+/// span in even steps.
+fn fold_vds(j: usize, n: usize, vds_min: f64, span: f64) -> f64 {
+    vds_min + j as f64 / (n - 1) as f64 * (span - vds_min)
 }
 
 /// Most source resistors of any topology (a unit test checks the registry).
@@ -485,7 +503,7 @@ struct PerCase {
     gds_hi: f64,
     gds_lo: f64,
     /// λ > 0 only: `g_lo_up` and `g_hi_dn` with k folded at each VDS of
-    /// the fold grid (vds_min to the span in [`FOLDS`] even steps), the
+    /// the fold grid (vds_min to the span in even steps), the
     /// current ceiling and floor over every tolerance extreme (those of
     /// the gds bounds), and the ceiling of VS over them.
     g_lo_up_at: [f64; FOLDS],
@@ -503,6 +521,8 @@ struct PerCase {
     /// rises).
     strong_from: [usize; FOLDS],
     weak_to: [usize; FOLDS],
+    /// λ > 0 only: the folds in use (the first `folds` of the arrays).
+    folds: usize,
     id_ceiling: f64,
     id_floor: f64,
     vs_ceiling: f64,
@@ -528,7 +548,7 @@ impl PerCase {
     /// λ > 0: the shelf indices whose weak-side fold is `j`, cut at index
     /// `capped`.
     fn weak_run(&self, j: usize, capped: usize) -> std::ops::Range<usize> {
-        let start = if j + 1 == FOLDS {
+        let start = if j + 1 == self.folds {
             0
         } else {
             self.weak_to[j + 1]
@@ -566,6 +586,8 @@ struct Bounds<'a> {
     lambda_free: bool,
     /// The source axes whose resistors enter the gain (not bypassed).
     src_axes: Vec<usize>,
+    /// λ > 0: the points of the fold grid, at most [`FOLDS`].
+    folds: usize,
     /// Scratch space of [`Bounds::bound`].
     work: std::cell::RefCell<Vec<PerCase>>,
     /// Scratch space of the λ > 0 scan: per case, the envelopes of
@@ -587,14 +609,17 @@ struct Bounds<'a> {
 struct Envelope {
     strong: [f64; FOLDS],
     weak: [f64; FOLDS],
+    /// The folds in use.
+    n: usize,
 }
 
 impl Envelope {
-    /// No value taken yet.
-    fn unknown() -> Envelope {
+    /// No value taken yet, over `n` folds.
+    fn unknown(n: usize) -> Envelope {
         Envelope {
             strong: [f64::NAN; FOLDS],
             weak: [f64::NAN; FOLDS],
+            n,
         }
     }
 
@@ -615,7 +640,7 @@ impl Envelope {
     /// from `fold_max` (a fold's largest weak bound).
     fn weak_from(&mut self, b: usize, mut fold_max: impl FnMut(usize) -> f64) -> f64 {
         let mut m = 0.0f64;
-        for j in (b..FOLDS).rev() {
+        for j in (b..self.n).rev() {
             if self.weak[j].is_nan() {
                 self.weak[j] = m.max(fold_max(j));
             }
@@ -662,16 +687,16 @@ impl Bounds<'_> {
     /// last VDS of the fold grid at or below the VDS floor that RD leaves,
     /// VDD − VS ceiling − RD(1 + t)·ID ceiling (it falls as RD rises).
     fn fold_lo(c: &PerCase, rd: f64) -> usize {
-        (1..FOLDS).take_while(|&j| rd <= c.strong_rd[j]).count()
+        (1..c.folds).take_while(|&j| rd <= c.strong_rd[j]).count()
     }
 
     /// λ > 0: the fold of the weak side with drain resistor `rd`: the
     /// first VDS of the fold grid at or above the VDS ceiling that RD
     /// leaves, VDD − VS floor − RD(1 − t)·ID floor (it falls as RD rises).
     fn fold_hi(c: &PerCase, rd: f64) -> usize {
-        (0..FOLDS - 1)
+        (0..c.folds - 1)
             .find(|&j| rd >= c.weak_rd[j])
-            .unwrap_or(FOLDS - 1)
+            .unwrap_or(c.folds - 1)
     }
 
     /// Optimistic metrics for every point of the box (each at least as good
@@ -761,6 +786,11 @@ impl Bounds<'_> {
         for (i, c) in cases.iter().enumerate() {
             w[i].g_hi_dn = bias_at(t, v, &c.rails, &folded(&c.law, c.span())).3;
         }
+        // With λ > 0 there is no proportionality, but the drain resistor is
+        // still scanned, with gm and gds at their extremes (below).
+        let lambda_scan = !self.lambda_free
+            && self.rd.is_some()
+            && (s.source_resistance_ohm == 0.0 || !t.input_at_source());
         if !self.lambda_free {
             // gds = λ·ID/(1 + λ·VDS) (ngspice's λ·ID0) with VDS between
             // vds_min and the span, and ID at most the current of the box's
@@ -798,70 +828,76 @@ impl Bounds<'_> {
             for (i, c) in cases.iter().enumerate() {
                 w[i].vs_floor = bias_at(t, v, &c.rails, &folded(&c.law, vds_floor)).2;
             }
-            // gm at the two tolerance-shifted points of the spread bound,
-            // k folded at each VDS of the grid (the ends are those above).
-            set(v, &low_id);
-            shift(v, self.roles, self.tol, true);
-            for (i, c) in cases.iter().enumerate() {
-                w[i].g_lo_up_at[0] = w[i].g_lo_up;
-                for j in 1..FOLDS {
-                    let at = fold_vds(j, vds_floor, c.span());
-                    w[i].g_lo_up_at[j] = bias_at(t, v, &c.rails, &folded(&c.law, at)).3;
+            // The fold grid serves the drain-resistor scan only (not a
+            // follower, nor a common gate with a source resistance).
+            if lambda_scan {
+                let nf = self.folds;
+                // gm at the two tolerance-shifted points of the spread bound,
+                // k folded at each VDS of the grid (the ends are those above).
+                set(v, &low_id);
+                shift(v, self.roles, self.tol, true);
+                for (i, c) in cases.iter().enumerate() {
+                    w[i].g_lo_up_at[0] = w[i].g_lo_up;
+                    for j in 1..nf {
+                        let at = fold_vds(j, nf, vds_floor, c.span());
+                        w[i].g_lo_up_at[j] = bias_at(t, v, &c.rails, &folded(&c.law, at)).3;
+                    }
                 }
-            }
-            set(v, &high_id);
-            shift(v, self.roles, self.tol, false);
-            for (i, c) in cases.iter().enumerate() {
-                w[i].g_hi_dn_at[FOLDS - 1] = w[i].g_hi_dn;
-                for j in 0..FOLDS - 1 {
-                    let at = fold_vds(j, vds_floor, c.span());
-                    w[i].g_hi_dn_at[j] = bias_at(t, v, &c.rails, &folded(&c.law, at)).3;
+                set(v, &high_id);
+                shift(v, self.roles, self.tol, false);
+                for (i, c) in cases.iter().enumerate() {
+                    w[i].g_hi_dn_at[nf - 1] = w[i].g_hi_dn;
+                    for j in 0..nf - 1 {
+                        let at = fold_vds(j, nf, vds_floor, c.span());
+                        w[i].g_hi_dn_at[j] = bias_at(t, v, &c.rails, &folded(&c.law, at)).3;
+                    }
                 }
-            }
-            // The RDs at which VDS's floor and ceiling cross the fold grid,
-            // and where each fold's run of shelf values starts and ends.
-            let rds = self.rd_values;
-            // (RD = room / per-ohm drop, ±∞ where no current drops it.)
-            let rd_for = |room: f64, drop: f64| {
-                if drop > 0.0 {
-                    room / drop
-                } else if room >= 0.0 {
-                    f64::INFINITY
-                } else {
-                    f64::NEG_INFINITY
-                }
-            };
-            for (c, case) in w.iter_mut().zip(cases) {
-                for j in 0..FOLDS {
-                    let vds = fold_vds(j, vds_floor, case.span());
-                    c.strong_rd[j] = if j == 0 {
+                // The RDs at which VDS's floor and ceiling cross the fold grid,
+                // and where each fold's run of shelf values starts and ends.
+                let rds = self.rd_values;
+                // (RD = room / per-ohm drop, ±∞ where no current drops it.)
+                let rd_for = |room: f64, drop: f64| {
+                    if drop > 0.0 {
+                        room / drop
+                    } else if room >= 0.0 {
                         f64::INFINITY
                     } else {
-                        rd_for(
-                            case.rails.vdd_v - c.vs_ceiling - vds,
-                            (1.0 + self.tol_max) * c.id_ceiling,
-                        )
-                    };
-                    c.weak_rd[j] = if j + 1 == FOLDS {
                         f64::NEG_INFINITY
-                    } else {
-                        rd_for(
-                            case.rails.vdd_v - c.vs_floor - vds,
-                            (1.0 - self.tol_max) * c.id_floor,
-                        )
-                    };
-                }
-                for j in 0..FOLDS {
-                    c.strong_from[j] = if j + 1 == FOLDS {
-                        0
-                    } else {
-                        rds.partition_point(|&x| x <= c.strong_rd[j + 1])
-                    };
-                    c.weak_to[j] = if j == 0 {
-                        rds.len()
-                    } else {
-                        rds.partition_point(|&x| x < c.weak_rd[j - 1])
-                    };
+                    }
+                };
+                for (c, case) in w.iter_mut().zip(cases) {
+                    c.folds = nf;
+                    for j in 0..nf {
+                        let vds = fold_vds(j, nf, vds_floor, case.span());
+                        c.strong_rd[j] = if j == 0 {
+                            f64::INFINITY
+                        } else {
+                            rd_for(
+                                case.rails.vdd_v - c.vs_ceiling - vds,
+                                (1.0 + self.tol_max) * c.id_ceiling,
+                            )
+                        };
+                        c.weak_rd[j] = if j + 1 == nf {
+                            f64::NEG_INFINITY
+                        } else {
+                            rd_for(
+                                case.rails.vdd_v - c.vs_floor - vds,
+                                (1.0 - self.tol_max) * c.id_floor,
+                            )
+                        };
+                    }
+                    for j in 0..nf {
+                        c.strong_from[j] = if j + 1 == nf {
+                            0
+                        } else {
+                            rds.partition_point(|&x| x <= c.strong_rd[j + 1])
+                        };
+                        c.weak_to[j] = if j == 0 {
+                            rds.len()
+                        } else {
+                            rds.partition_point(|&x| x < c.weak_rd[j - 1])
+                        };
+                    }
                 }
             }
         }
@@ -1154,11 +1190,6 @@ impl Bounds<'_> {
             let b = gain_at_m(v, w[0].g_hi_dn, 2.0 * r0, &extremes[0], 1.0).0;
             a > 0.0 && ((b / a) / (par2(2.0 * r0, rl) / par2(r0, rl)) - 1.0).abs() < 1e-9
         };
-        // With λ > 0 there is no proportionality, but the drain resistor is
-        // still scanned, with gm and gds at their extremes (below).
-        let lambda_scan = !self.lambda_free
-            && self.rd.is_some()
-            && (s.source_resistance_ohm == 0.0 || !t.input_at_source());
         let scanned = scan || lambda_scan;
         // The level at the largest RD (the scan's window implies it) and
         // the Zin of a common-gate input.
@@ -1415,7 +1446,7 @@ impl Bounds<'_> {
             fold_gds.extend(w.iter().zip(cases).map(|(c, case)| {
                 let l = case.law.lambda_per_v;
                 let mut out = [(c.gds_hi, c.gds_lo); FOLDS];
-                for (j, o) in out.iter_mut().enumerate() {
+                for (j, o) in out.iter_mut().enumerate().take(c.folds) {
                     if let Some(k) = c.strong_run(j, capped).last() {
                         let vds = self.vds_lo(c, case, rds[k]);
                         o.0 = (l * c.id_ceiling / (1.0 + l * vds)).min(c.gds_hi);
@@ -1473,7 +1504,7 @@ impl Bounds<'_> {
             let mut envelopes = self.envelopes.borrow_mut();
             envelopes.resize(n, Envelope::default());
             for (group, &(share_lo, share_hi, zin_ratio)) in cells() {
-                envelopes.fill(Envelope::unknown());
+                envelopes.fill(Envelope::unknown(self.folds));
                 // Fold `a`'s smallest strong bound is at its first RD, fold
                 // `b`'s largest weak bound at its last (∞ and 0 for a fold
                 // with no RD up to the cap).
@@ -1502,7 +1533,7 @@ impl Bounds<'_> {
                             lb = lb.min(envelopes[i].strong_to(a - 1, |j| fold_min(v, i, j)));
                         }
                         let mut ub = weak_at(v, i, x, b, group);
-                        if b + 1 < FOLDS {
+                        if b + 1 < c.folds {
                             ub = ub.max(envelopes[i].weak_from(b + 1, |j| fold_max(v, i, j)));
                         }
                         strong = strong.max(lb * share_lo);
@@ -1929,6 +1960,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
                 !axes[i].gate_axis && axes[i].positions.iter().any(|k| !t.bypassed().contains(k))
             })
             .collect(),
+        folds: fold_points(col.fold_points, shelf.values.len()),
         work: std::cell::RefCell::new(Vec::new()),
         envelopes: std::cell::RefCell::new(Vec::new()),
         fold_gds: std::cell::RefCell::new(Vec::new()),
@@ -2326,6 +2358,17 @@ mod tests {
 
     // The source points of a box enumerate every combination once: with
     // widths 3 and 2 there are 6, each (axis 0, axis 1) pair exactly once.
+    #[test]
+    fn fold_grid_follows_the_shelf_length_within_its_bounds() {
+        // E24 over 10 Ω–22 MΩ (153 values), E96 over 1 Ω–10 MΩ (673).
+        assert_eq!(fold_points(None, 153), 8);
+        assert_eq!(fold_points(None, 673), 21);
+        assert_eq!(fold_points(None, 100_000), FOLDS);
+        assert_eq!(fold_points(Some(1), 673), 2);
+        assert_eq!(fold_points(Some(12), 13), 12);
+        assert_eq!(fold_points(Some(100), 13), FOLDS);
+    }
+
     #[test]
     fn source_points_cover_each_combination_once() {
         let ranges = [(4usize, 7usize), (10, 12)];

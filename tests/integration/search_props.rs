@@ -54,6 +54,17 @@ fn default_search_matches_exhaustive_best_score() {
                 ..Options::default()
             };
             let fast = search::run(spec, &shelf, &opts).expect("search");
+            // The finest fold grid (long shelves get finer grids than this
+            // one-decade shelf's 8 points): λ > 0 bounds must hold on it too.
+            let fine = search::run(
+                spec,
+                &shelf,
+                &Options {
+                    fold_points: Some(24),
+                    ..opts
+                },
+            )
+            .expect("search, fine fold grid");
             let slow = search::run(
                 spec,
                 &shelf,
@@ -74,6 +85,15 @@ fn default_search_matches_exhaustive_best_score() {
                 fast.designs.first(),
                 slow.designs.first()
             );
+            prop_assert!(
+                match (best(&fine), best(&fast)) {
+                    (Some(a), Some(b)) => (a - b).abs() <= 1e-12,
+                    (a, b) => a.is_none() && b.is_none(),
+                },
+                "fine fold grid: {:?} against {:?}",
+                fine.designs.first(),
+                fast.designs.first()
+            );
             if let (Some(a), Some(b)) = (best(&fast), best(&slow)) {
                 feasible.set(feasible.get() + 1);
                 prop_assert!(
@@ -85,7 +105,7 @@ fn default_search_matches_exhaustive_best_score() {
             }
             // Every reported design is feasible under the full evaluation.
             let p = Problem::new(spec);
-            for d in &fast.designs {
+            for d in fast.designs.iter().chain(&fine.designs) {
                 let wc = worst_case(&p, d.topology, &d.values, &d.tolerances);
                 prop_assert!(
                     all_pass(&margins(&p, d.topology, &wc)),

@@ -521,8 +521,6 @@ struct PerCase {
     /// rises).
     strong_from: [usize; FOLDS],
     weak_to: [usize; FOLDS],
-    /// λ > 0 only: the folds in use (the first `folds` of the arrays).
-    folds: usize,
     id_ceiling: f64,
     id_floor: f64,
     vs_ceiling: f64,
@@ -545,14 +543,10 @@ impl PerCase {
         self.strong_from[j]..end.min(capped)
     }
 
-    /// λ > 0: the shelf indices whose weak-side fold is `j`, cut at index
-    /// `capped`.
-    fn weak_run(&self, j: usize, capped: usize) -> std::ops::Range<usize> {
-        let start = if j + 1 == self.folds {
-            0
-        } else {
-            self.weak_to[j + 1]
-        };
+    /// λ > 0: the shelf indices whose weak-side fold is `j` of `n`, cut
+    /// at index `capped`.
+    fn weak_run(&self, j: usize, n: usize, capped: usize) -> std::ops::Range<usize> {
+        let start = if j + 1 == n { 0 } else { self.weak_to[j + 1] };
         start..self.weak_to[j].min(capped)
     }
 }
@@ -609,17 +603,14 @@ struct Bounds<'a> {
 struct Envelope {
     strong: [f64; FOLDS],
     weak: [f64; FOLDS],
-    /// The folds in use.
-    n: usize,
 }
 
 impl Envelope {
-    /// No value taken yet, over `n` folds.
-    fn unknown(n: usize) -> Envelope {
+    /// No value taken yet.
+    fn unknown() -> Envelope {
         Envelope {
             strong: [f64::NAN; FOLDS],
             weak: [f64::NAN; FOLDS],
-            n,
         }
     }
 
@@ -636,11 +627,11 @@ impl Envelope {
         m
     }
 
-    /// `weak[b]`, taking the missing entries from the top fold down to it
-    /// from `fold_max` (a fold's largest weak bound).
-    fn weak_from(&mut self, b: usize, mut fold_max: impl FnMut(usize) -> f64) -> f64 {
+    /// `weak[b]`, taking the missing entries from the top fold (of `n`)
+    /// down to it from `fold_max` (a fold's largest weak bound).
+    fn weak_from(&mut self, b: usize, n: usize, mut fold_max: impl FnMut(usize) -> f64) -> f64 {
         let mut m = 0.0f64;
-        for j in (b..self.n).rev() {
+        for j in (b..n).rev() {
             if self.weak[j].is_nan() {
                 self.weak[j] = m.max(fold_max(j));
             }
@@ -686,17 +677,19 @@ impl Bounds<'_> {
     /// λ > 0: the fold of the strong side with drain resistor `rd`: the
     /// last VDS of the fold grid at or below the VDS floor that RD leaves,
     /// VDD − VS ceiling − RD(1 + t)·ID ceiling (it falls as RD rises).
-    fn fold_lo(c: &PerCase, rd: f64) -> usize {
-        (1..c.folds).take_while(|&j| rd <= c.strong_rd[j]).count()
+    fn fold_lo(&self, c: &PerCase, rd: f64) -> usize {
+        (1..self.folds)
+            .take_while(|&j| rd <= c.strong_rd[j])
+            .count()
     }
 
     /// λ > 0: the fold of the weak side with drain resistor `rd`: the
     /// first VDS of the fold grid at or above the VDS ceiling that RD
     /// leaves, VDD − VS floor − RD(1 − t)·ID floor (it falls as RD rises).
-    fn fold_hi(c: &PerCase, rd: f64) -> usize {
-        (0..c.folds - 1)
+    fn fold_hi(&self, c: &PerCase, rd: f64) -> usize {
+        (0..self.folds - 1)
             .find(|&j| rd >= c.weak_rd[j])
-            .unwrap_or(c.folds - 1)
+            .unwrap_or(self.folds - 1)
     }
 
     /// Optimistic metrics for every point of the box (each at least as good
@@ -866,7 +859,6 @@ impl Bounds<'_> {
                     }
                 };
                 for (c, case) in w.iter_mut().zip(cases) {
-                    c.folds = nf;
                     for j in 0..nf {
                         let vds = fold_vds(j, nf, vds_floor, case.span());
                         c.strong_rd[j] = if j == 0 {
@@ -1446,12 +1438,12 @@ impl Bounds<'_> {
             fold_gds.extend(w.iter().zip(cases).map(|(c, case)| {
                 let l = case.law.lambda_per_v;
                 let mut out = [(c.gds_hi, c.gds_lo); FOLDS];
-                for (j, o) in out.iter_mut().enumerate().take(c.folds) {
+                for (j, o) in out.iter_mut().enumerate().take(self.folds) {
                     if let Some(k) = c.strong_run(j, capped).last() {
                         let vds = self.vds_lo(c, case, rds[k]);
                         o.0 = (l * c.id_ceiling / (1.0 + l * vds)).min(c.gds_hi);
                     }
-                    if let Some(k) = c.weak_run(j, capped).next() {
+                    if let Some(k) = c.weak_run(j, self.folds, capped).next() {
                         let vds = self.vds_hi(c, case, rds[k]);
                         o.1 = (l * c.id_floor / (1.0 + l * vds)).max(c.gds_lo);
                     }
@@ -1504,7 +1496,7 @@ impl Bounds<'_> {
             let mut envelopes = self.envelopes.borrow_mut();
             envelopes.resize(n, Envelope::default());
             for (group, &(share_lo, share_hi, zin_ratio)) in cells() {
-                envelopes.fill(Envelope::unknown(self.folds));
+                envelopes.fill(Envelope::unknown());
                 // Fold `a`'s smallest strong bound is at its first RD, fold
                 // `b`'s largest weak bound at its last (∞ and 0 for a fold
                 // with no RD up to the cap).
@@ -1514,7 +1506,7 @@ impl Bounds<'_> {
                         .map_or(f64::INFINITY, |k| strong_at(v, i, rds[k], a, group))
                 };
                 let fold_max = |v: &mut [f64], i: usize, b: usize| {
-                    w[i].weak_run(b, capped)
+                    w[i].weak_run(b, self.folds, capped)
                         .last()
                         .map_or(0.0, |k| weak_at(v, i, rds[k], b, group))
                 };
@@ -1527,14 +1519,16 @@ impl Bounds<'_> {
                 let mut gains = |x: f64| {
                     let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
                     for (i, c) in w.iter().enumerate() {
-                        let (a, b) = (Self::fold_lo(c, x), Self::fold_hi(c, x));
+                        let (a, b) = (self.fold_lo(c, x), self.fold_hi(c, x));
                         let mut lb = strong_at(v, i, x, a, group);
                         if a > 0 {
                             lb = lb.min(envelopes[i].strong_to(a - 1, |j| fold_min(v, i, j)));
                         }
                         let mut ub = weak_at(v, i, x, b, group);
-                        if b + 1 < c.folds {
-                            ub = ub.max(envelopes[i].weak_from(b + 1, |j| fold_max(v, i, j)));
+                        if b + 1 < self.folds {
+                            ub = ub.max(
+                                envelopes[i].weak_from(b + 1, self.folds, |j| fold_max(v, i, j)),
+                            );
                         }
                         strong = strong.max(lb * share_lo);
                         weak = weak.min(ub * share_hi);

@@ -226,7 +226,13 @@ fn at_corner(
     let label = || corner.label.clone();
     let closed = quick(p, t, values, &corner.law, &p.rails);
     let net = t.netlist(values, &p.netlist_input(corner));
-    let solved = verify::dc(&net)
+    // Newton starts from the closed form's current (the nodal solve must
+    // still meet KCL at every node on its own; the start saves iterations).
+    let opts = verify::DcOptions {
+        fet_currents_a: Some(vec![closed.eval.op.id_a]),
+        ..verify::DcOptions::default()
+    };
+    let solved = verify::dc_with(&net, &opts)
         .and_then(|dc| verify::small_signal(&net, &dc, Freq::MidBand).map(|m| (dc, m)));
     let (dc, m) = solved.map_err(|error| Disagreement::Solver {
         corner: label(),

@@ -105,10 +105,23 @@ fn relative_measure_has_a_floor_and_handles_infinity() {
 /// wrong closed form and for a netlist the solver rejects.
 struct Faulty {
     broken: bool,
+    /// The closed form's bias takes RS 0.1 % too large (a wrong closed-form
+    /// current, which the solver's start is taken from).
+    wrong_bias: bool,
 }
 const GAIN_ERROR: f64 = 1e-4;
-static WRONG_GAIN: Faulty = Faulty { broken: false };
-static BROKEN: Faulty = Faulty { broken: true };
+static WRONG_GAIN: Faulty = Faulty {
+    broken: false,
+    wrong_bias: false,
+};
+static BROKEN: Faulty = Faulty {
+    broken: true,
+    wrong_bias: false,
+};
+static WRONG_BIAS: Faulty = Faulty {
+    broken: false,
+    wrong_bias: true,
+};
 
 impl Topology for Faulty {
     fn id(&self) -> &'static str {
@@ -127,7 +140,11 @@ impl Topology for Faulty {
         by_id("self-bias").unwrap().families()
     }
     fn bias(&self, values: &[f64], rails: &Rails) -> BiasNetwork {
-        by_id("self-bias").unwrap().bias(values, rails)
+        let mut b = by_id("self-bias").unwrap().bias(values, rails);
+        if self.wrong_bias {
+            b.rs_ohm *= 1.001;
+        }
+        b
     }
     fn small_signal(&self, values: &[f64], ctx: &SignalContext) -> SmallSignal {
         let mut ss = by_id("self-bias").unwrap().small_signal(values, ctx);
@@ -181,6 +198,25 @@ fn a_wrong_closed_form_is_a_disagreement_naming_quantity_and_corner() {
     let all = compare(&p, &WRONG_GAIN, &[1e6, 680.0, 2.2e3]);
     assert!(all.iter().all(|c| !c.agrees()));
     assert!(all.iter().all(|c| row(c, Quantity::Id).agrees));
+}
+
+// The solver starts from the closed form's current, but must still meet
+// KCL on its own: a closed-form current that is off (RS taken 0.1 % too
+// large) is reported, not confirmed.
+#[test]
+fn a_wrong_closed_form_current_is_a_disagreement() {
+    let p = problem("['6m', '10m']", "['-3', '-5']");
+    let e = crosscheck(&p, &WRONG_BIAS, &[1e6, 680.0, 2.2e3]).unwrap_err();
+    let Disagreement::Value {
+        quantity, relative, ..
+    } = &e
+    else {
+        panic!("{e}");
+    };
+    assert_eq!(*quantity, Quantity::Id, "{e}");
+    assert!(*relative > 10.0 * REL_TOL, "{e}");
+    let all = compare(&p, &WRONG_BIAS, &[1e6, 680.0, 2.2e3]);
+    assert!(all.iter().all(|c| !row(c, Quantity::Id).agrees));
 }
 
 #[test]

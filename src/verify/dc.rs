@@ -12,7 +12,8 @@
 //! zero (gmin stepping). Every method ends with a solve of the circuit as
 //! given (no shunt conductance, full sources), and the answer is accepted
 //! only when KCL holds at every node and the last Newton update is
-//! negligible.
+//! negligible. With a guess of the FET currents ([`DcOptions::fet_currents_a`])
+//! Newton first starts from the linear network with those currents fixed.
 
 use super::check::{connected, validate};
 use super::fet::eval;
@@ -254,8 +255,23 @@ impl<'a> System<'a> {
 
     /// The linear network alone (FETs open), as a first guess.
     fn first_guess(&self) -> Vec<f64> {
+        self.guess_with_currents(&[])
+    }
+
+    /// The linear network with FET `k` replaced by a fixed current
+    /// `id[k]` from drain to source, amps (FETs past the end of `id` open):
+    /// the operating point itself when the currents are right.
+    fn guess_with_currents(&self, id: &[f64]) -> Vec<f64> {
         let zero = vec![0.0; self.size()];
-        let a = self.assemble(&zero, 1.0, 0.0, false);
+        let mut a = self.assemble(&zero, 1.0, 0.0, false);
+        for (fet, &i) in self.fets.iter().zip(id) {
+            if let Some(r) = unknown(fet.d) {
+                a.f[r] += i;
+            }
+            if let Some(r) = unknown(fet.s) {
+                a.f[r] -= i;
+            }
+        }
         let rhs = DVector::from_iterator(a.f.len(), a.f.iter().map(|f| -f));
         match solve(a.j, rhs) {
             Some(dx) => dx.iter().copied().collect(),
@@ -362,8 +378,19 @@ pub(crate) fn run(net: &Netlist, opts: &DcOptions) -> Result<DcSolution, SolveEr
         tried.push(method.id());
         let result = match method {
             DcMethod::Newton => {
-                let mut x = sys.first_guess();
-                sys.newton(&mut x, 1.0, 0.0, opts, &mut stats).map(|()| x)
+                let seeded = opts.fet_currents_a.as_ref().and_then(|id| {
+                    let mut x = sys.guess_with_currents(id);
+                    sys.newton(&mut x, 1.0, 0.0, opts, &mut stats)
+                        .ok()
+                        .map(|()| x)
+                });
+                match seeded {
+                    Some(x) => Ok(x),
+                    None => {
+                        let mut x = sys.first_guess();
+                        sys.newton(&mut x, 1.0, 0.0, opts, &mut stats).map(|()| x)
+                    }
+                }
             }
             DcMethod::SourceStepping => sys.source_stepping(opts, &mut stats),
             DcMethod::GminStepping => sys.gmin_stepping(opts, &mut stats),

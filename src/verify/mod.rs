@@ -80,6 +80,13 @@ pub struct DcOptions {
     pub max_step_v: f64,
     /// Methods to try, in order, until one converges.
     pub methods: Vec<DcMethod>,
+    /// A guess of each FET's drain current, amps, in netlist order (say
+    /// from a closed form). Newton then starts from the linear network with
+    /// each FET replaced by that fixed current, and only if it does not
+    /// converge from there from the usual first guess (FETs open). The
+    /// guess moves the start only: the answer must still satisfy KCL at
+    /// every node.
+    pub fet_currents_a: Option<Vec<f64>>,
 }
 
 impl Default for DcOptions {
@@ -92,6 +99,7 @@ impl Default for DcOptions {
                 DcMethod::SourceStepping,
                 DcMethod::GminStepping,
             ],
+            fet_currents_a: None,
         }
     }
 }

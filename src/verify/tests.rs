@@ -214,6 +214,35 @@ fn continuation_methods_agree_with_newton() {
     }
 }
 
+// A guess of the FET current moves Newton's start, not its answer: from
+// the right current (2 mA, REFERENCE §4.6 self-bias values) it confirms
+// the point at once, from wrong ones (off by −90 % to +400 %, and the
+// wrong sign) it still reaches the same point.
+#[test]
+fn a_current_guess_moves_the_start_not_the_answer() {
+    let n = self_bias(jfet(8e-3, -4.0), 15.0, 2e3, 1e3, 10e3);
+    let plain = dc(&n).unwrap();
+    for guess in [2e-3, 0.2e-3, 10e-3, -2e-3, 0.0] {
+        let opts = DcOptions {
+            fet_currents_a: Some(vec![guess]),
+            ..DcOptions::default()
+        };
+        let dc = dc_with(&n, &opts).unwrap();
+        let q = dc.fet("Q1").unwrap();
+        let what = format!("guess {guess} A");
+        close(q.vgs_v, -2.0, 1e-12, &what);
+        close(q.id_a, 2e-3, 1e-15, &what);
+        if guess == 2e-3 {
+            assert!(
+                dc.iterations < plain.iterations && dc.iterations <= 2,
+                "{} iterations from the right current, {} from the usual start",
+                dc.iterations,
+                plain.iterations
+            );
+        }
+    }
+}
+
 #[test]
 fn too_few_iterations_is_an_error_not_an_answer() {
     let n = self_bias(jfet(8e-3, -4.0), 15.0, 2e3, 1e3, 10e3);

@@ -10,6 +10,7 @@
 //!
 //! This module prints nothing.
 
+mod aid;
 pub mod exhaustive;
 pub mod smart;
 
@@ -310,6 +311,8 @@ pub(crate) struct Collector<'a> {
     pub(crate) effort: Effort,
     /// The best `keep` exact scores so far, descending.
     pub(crate) top_scores: Vec<f64>,
+    /// Free cores a long search may take a helper thread from.
+    pub(crate) spare: Option<&'a aid::Spare>,
 }
 
 impl Collector<'_> {
@@ -460,6 +463,7 @@ fn search_one(
     shelf: &Shelf,
     opts: &Options,
     index: usize,
+    spare: Option<&aid::Spare>,
 ) -> (Result<Vec<Design>, Rejection>, Effort) {
     let t = TOPOLOGIES[index];
     if let Some(r) = structural(p, t) {
@@ -476,6 +480,7 @@ fn search_one(
         miss: MissTracker::default(),
         effort: Effort::default(),
         top_scores: Vec::new(),
+        spare,
     };
     match opts.method {
         Method::Smart => smart::search(&mut col, shelf),
@@ -501,20 +506,23 @@ fn search_one(
 /// as the machine has cores (each takes the next topology not yet taken,
 /// those with the most resistors, the longest searches, first); without
 /// threads they run here one after another.
-fn each_topology<R: Send>(f: impl Fn(usize) -> R + Sync) -> Vec<(usize, R)> {
+fn each_topology<R: Send>(f: impl Fn(usize, &aid::Spare) -> R + Sync) -> Vec<(usize, R)> {
     use std::sync::atomic::AtomicUsize;
     let n = TOPOLOGIES.len();
     let mut order: Vec<usize> = (0..n).collect();
     order.sort_by_key(|&i| std::cmp::Reverse(TOPOLOGIES[i].parts().len()));
     let next = AtomicUsize::new(0);
+    let spare = aid::Spare::default();
     let run = || {
         let mut out = Vec::new();
         loop {
             let k = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
             let Some(&i) = order.get(k) else {
+                // This core is free now: a search still running may take it.
+                spare.add();
                 return out;
             };
-            out.push((i, f(i)));
+            out.push((i, f(i, &spare)));
         }
     };
     let threads = std::thread::available_parallelism().map_or(1, |x| x.get().min(n));
@@ -566,7 +574,8 @@ pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, S
     }
     let mut all = Vec::new();
     let mut rejected = Vec::new();
-    for (_, (outcome, e)) in each_topology(|i| search_one(&p, &shelf, opts, i)) {
+    for (_, (outcome, e)) in each_topology(|i, spare| search_one(&p, &shelf, opts, i, Some(spare)))
+    {
         effort.configurations += e.configurations;
         effort.corner_checks += e.corner_checks;
         effort.exact_checks += e.exact_checks;
@@ -592,4 +601,47 @@ pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, S
         effort,
         nominal_only: opts.nominal_only,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::catalog::ESeries;
+
+    // A helper thread changes the time only (see `aid`): one topology's
+    // long search gives the same designs, scores and work counts with a
+    // free core to claim from its first batch as with none.
+    #[test]
+    fn a_helper_thread_changes_nothing_but_the_time() {
+        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/examples/dual-rail.toml");
+        let text = std::fs::read_to_string(path).unwrap();
+        let spec = crate::spec::parse(&text).unwrap();
+        let (lo, hi) = (spec.parts.r_min_ohm, spec.parts.r_max_ohm);
+        let cat = Catalog::from_series(ESeries::E24, spec.parts.tolerance, lo, hi).unwrap();
+        let shelf = Shelf::new(&cat, spec.parts.tolerance, lo, hi);
+        let p = problem_for(&spec, false);
+        let index = TOPOLOGIES
+            .iter()
+            .position(|t| t.id() == "divider-split")
+            .unwrap();
+        let opts = Options::default();
+        let alone = search_one(&p, &shelf, &opts, index, None);
+        let spare = aid::Spare::default();
+        spare.add();
+        let helped = search_one(&p, &shelf, &opts, index, Some(&spare));
+        // The helper has left and given its core back.
+        assert!(spare.claim());
+        let (Ok(a), Ok(b)) = (&alone.0, &helped.0) else {
+            panic!("divider-split gave no design on dual-rail");
+        };
+        assert!(a.len() >= 2, "{a:?}");
+        let key = |d: &Design| (d.values.clone(), d.score);
+        assert_eq!(
+            a.iter().map(key).collect::<Vec<_>>(),
+            b.iter().map(key).collect::<Vec<_>>()
+        );
+        assert_eq!(alone.1, helped.1);
+        // Long enough that its batches reach the size shared with a helper.
+        assert!(alone.1.corner_checks > 1000, "{:?}", alone.1);
+    }
 }

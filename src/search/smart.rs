@@ -35,6 +35,7 @@
 //!
 //! The exhaustive search is the proof: the property test compares them.
 
+use super::aid::{Crew, Spare};
 use super::exhaustive::choices;
 use super::{Collector, Shelf};
 use crate::analysis::{
@@ -582,14 +583,22 @@ struct Bounds<'a> {
     src_axes: Vec<usize>,
     /// λ > 0: the points of the fold grid, at most [`FOLDS`].
     folds: usize,
-    /// Scratch space of [`Bounds::bound`].
-    work: std::cell::RefCell<Vec<PerCase>>,
-    /// Scratch space of the λ > 0 scan: per case, the envelopes of
-    /// [`Envelope`].
-    envelopes: std::cell::RefCell<Vec<Envelope>>,
-    /// Scratch space of the λ > 0 scan: per case and fold, the gds
-    /// ceiling of the strong side and floor of the weak side, siemens.
-    fold_gds: std::cell::RefCell<Vec<[(f64, f64); FOLDS]>>,
+}
+
+/// Scratch space of [`Bounds::bound`], one per thread that bounds boxes
+/// (reused by every bound: a bound allocates nothing).
+#[derive(Default)]
+struct Scratch {
+    /// Per case, the figures of [`PerCase`].
+    work: Vec<PerCase>,
+    /// λ > 0 scan: per case, the envelopes of [`Envelope`].
+    envelopes: Vec<Envelope>,
+    /// λ > 0 scan: per case and fold, the gds ceiling of the strong side
+    /// and floor of the weak side, siemens.
+    fold_gds: Vec<[(f64, f64); FOLDS]>,
+    /// The values of every position, ohms (the box's own are set by the
+    /// bound).
+    v: Vec<f64>,
 }
 
 /// λ > 0, one case of one cell: across the folds of the fold grid the
@@ -695,7 +704,19 @@ impl Bounds<'_> {
     /// Optimistic metrics for every point of the box (each at least as good
     /// as any feasible point in it can reach), or `None` when no point of the
     /// box can be feasible.
-    fn bound(&self, axes: &[Axis], ranges: &[(usize, usize)], v: &mut [f64]) -> Option<Bound> {
+    fn bound(
+        &self,
+        scratch: &mut Scratch,
+        axes: &[Axis],
+        ranges: &[(usize, usize)],
+    ) -> Option<Bound> {
+        let Scratch {
+            work,
+            envelopes,
+            fold_gds,
+            v,
+        } = scratch;
+        let v = &mut v[..];
         let p = self.p;
         let t = self.t;
         let s = &p.spec;
@@ -716,7 +737,6 @@ impl Bounds<'_> {
         let vds_floor = s.vds_min_v;
         let cases = &self.cases;
         let n = cases.len();
-        let mut work = self.work.borrow_mut();
         work.clear();
         work.resize(n, PerCase::default());
         let w = &mut work[..];
@@ -1433,7 +1453,6 @@ impl Bounds<'_> {
             // gds per fold: on the strong side its ceiling at the fold's
             // largest RD (VDS's floor falls, gds's ceiling rises with RD),
             // on the weak side its floor at the fold's smallest RD.
-            let mut fold_gds = self.fold_gds.borrow_mut();
             fold_gds.clear();
             fold_gds.extend(w.iter().zip(cases).map(|(c, case)| {
                 let l = case.law.lambda_per_v;
@@ -1458,7 +1477,7 @@ impl Bounds<'_> {
             // bounds above. Both are taken per fold, not per RD, so each
             // bound rises with RD inside a fold (|gain| rises with RD at
             // fixed gm and gds).
-            let fold_gds = &fold_gds;
+            let fold_gds = &*fold_gds;
             let strong_at =
                 |v: &mut [f64], i: usize, x: f64, a: usize, group: &[[usize; MAX_SOURCES]]| {
                     let c = &w[i];
@@ -1493,7 +1512,6 @@ impl Bounds<'_> {
                     }
                     ub
                 };
-            let mut envelopes = self.envelopes.borrow_mut();
             envelopes.resize(n, Envelope::default());
             for (group, &(share_lo, share_hi, zin_ratio)) in cells() {
                 envelopes.fill(Envelope::unknown());
@@ -1515,7 +1533,7 @@ impl Bounds<'_> {
                 // the cap, the weak side at most the largest weak bound
                 // over the RDs up to x (both then rise with RD, as the scan
                 // needs). The folds' extremes are taken when first needed.
-                let envelopes = &mut envelopes;
+                let envelopes = &mut *envelopes;
                 let mut gains = |x: f64| {
                     let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
                     for (i, c) in w.iter().enumerate() {
@@ -1955,64 +1973,75 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             })
             .collect(),
         folds: fold_points(col.fold_points, shelf.values.len()),
-        work: std::cell::RefCell::new(Vec::new()),
-        envelopes: std::cell::RefCell::new(Vec::new()),
-        fold_gds: std::cell::RefCell::new(Vec::new()),
     };
     let mut oidx = vec![0usize; outer.len()];
-    loop {
-        for ((pos, opts), &j) in outer.iter().zip(&oidx) {
-            v[*pos] = opts[j];
-        }
-        let ranges: Vec<(usize, usize)> = axes.iter().map(|a| (0, a.len())).collect();
-        if feedback {
-            // Drain feedback has no box: RD is an outer choice.
-            col.effort.configurations += 1;
-            visit(col, &mut v, run_k, feedback, shelf);
-        } else {
-            let mut scratch = v.clone();
-            col.effort.corner_checks += 1;
-            let root = if axes.is_empty() {
-                Some((f64::INFINITY, None, Vec::new()))
-            } else {
-                bounds
-                    .bound(&axes, &ranges, &mut scratch)
-                    .map(|bd| (bounds.scorer.score(&bd.metrics), bd.rd_window, bd.rd_scores))
-            };
-            if let Some((score, rd_window, rd_scores)) = root {
-                let mut whole = [(0, 0); MAX_AXES];
-                whole[..ranges.len()].copy_from_slice(&ranges);
-                let root = Node {
-                    ranges: whole,
-                    rd_window,
-                    rd_scores,
-                };
-                branch(col, &bounds, &axes, (score, root), &mut v, shelf);
-            }
-        }
-        let mut k = outer.len();
+    let crew = Crew::new();
+    std::thread::scope(|sc| {
+        let _close = Closing(&crew);
+        let mut help = Help {
+            scope: sc,
+            crew: &crew,
+            spare: col.spare,
+            thread: None,
+        };
         loop {
-            if k == 0 {
-                // No design: the answer names the closest miss. The bounds
-                // skip most near misses, so a coarse grid of configurations
-                // (at the largest outer values) is always examined too.
-                if col.designs.is_empty() && !feedback {
-                    for (pos, opts) in &outer {
-                        v[*pos] = opts[opts.len() - 1];
-                    }
-                    let ranges: Vec<(usize, usize)> = axes.iter().map(|a| (0, a.len())).collect();
-                    diagnose(col, &axes, &ranges, &mut v, run_k, shelf);
+            for ((pos, opts), &j) in outer.iter().zip(&oidx) {
+                v[*pos] = opts[j];
+            }
+            let ranges: Vec<(usize, usize)> = axes.iter().map(|a| (0, a.len())).collect();
+            if feedback {
+                // Drain feedback has no box: RD is an outer choice.
+                col.effort.configurations += 1;
+                visit(col, &mut v, run_k, feedback, shelf);
+            } else {
+                let mut scratch = Scratch {
+                    v: v.clone(),
+                    ..Scratch::default()
+                };
+                col.effort.corner_checks += 1;
+                let root = if axes.is_empty() {
+                    Some((f64::INFINITY, None, Vec::new()))
+                } else {
+                    bounds
+                        .bound(&mut scratch, &axes, &ranges)
+                        .map(|bd| (bounds.scorer.score(&bd.metrics), bd.rd_window, bd.rd_scores))
+                };
+                if let Some((score, rd_window, rd_scores)) = root {
+                    let mut whole = [(0, 0); MAX_AXES];
+                    whole[..ranges.len()].copy_from_slice(&ranges);
+                    let root = Node {
+                        ranges: whole,
+                        rd_window,
+                        rd_scores,
+                    };
+                    branch(col, &bounds, &axes, (score, root), &mut v, shelf, &mut help);
                 }
-                return;
             }
-            k -= 1;
-            oidx[k] += 1;
-            if oidx[k] < outer[k].1.len() {
-                break;
+            let mut k = outer.len();
+            loop {
+                if k == 0 {
+                    // No design: the answer names the closest miss. The bounds
+                    // skip most near misses, so a coarse grid of configurations
+                    // (at the largest outer values) is always examined too.
+                    if col.designs.is_empty() && !feedback {
+                        for (pos, opts) in &outer {
+                            v[*pos] = opts[opts.len() - 1];
+                        }
+                        let ranges: Vec<(usize, usize)> =
+                            axes.iter().map(|a| (0, a.len())).collect();
+                        diagnose(col, &axes, &ranges, &mut v, run_k, shelf);
+                    }
+                    return;
+                }
+                k -= 1;
+                oidx[k] += 1;
+                if oidx[k] < outer[k].1.len() {
+                    break;
+                }
+                oidx[k] = 0;
             }
-            oidx[k] = 0;
         }
-    }
+    });
 }
 
 /// Most axes a box has: the divider and the source resistors.
@@ -2115,13 +2144,14 @@ impl Queue {
 /// highest score bound is split next, so good designs come early and raise
 /// the entry threshold, and the search ends when the best waiting bound is
 /// below it (no box left can hold a design that would be kept).
-fn branch(
+fn branch<'env>(
     col: &mut Collector<'_>,
-    b: &Bounds<'_>,
-    axes: &[Axis],
+    b: &'env Bounds<'_>,
+    axes: &'env [Axis],
     root: (f64, Node),
     v: &mut [f64],
     shelf: &Shelf,
+    help: &mut Help<'_, 'env>,
 ) {
     // The box holds every part but the drain resistor (drain feedback,
     // which has no box, never branches).
@@ -2129,21 +2159,91 @@ fn branch(
     let n_axes = axes.len();
     let mut queue = Queue::new();
     queue.push(root.0, root.1);
-    let mut scratch = v.to_vec();
-    while let Some((score, node)) = queue.pop() {
-        if score < col.threshold() {
-            break;
-        }
-        let ranges = &node.ranges[..n_axes];
-        let widest = (0..ranges.len())
+    let mut space = Scratch::default();
+    // The axis to split a box along: the one whose range spans the widest
+    // logarithmic range (None for a single configuration).
+    let widest = |ranges: &[(usize, usize)]| {
+        (0..ranges.len())
             .filter(|&i| ranges[i].1 - ranges[i].0 > 1)
             .max_by(|&i, &j| {
                 let w = |k: usize| axes[k].scale[ranges[k].1 - 1] - axes[k].scale[ranges[k].0];
                 w(i).total_cmp(&w(j))
                     .then((ranges[i].1 - ranges[i].0).cmp(&(ranges[j].1 - ranges[j].0)))
                     .then(j.cmp(&i))
-            });
-        let Some(i) = widest else {
+            })
+    };
+    let mut batch: Vec<Node> = Vec::with_capacity(BATCH);
+    let mut popped = 0usize;
+    let mut halves: Vec<[(usize, usize); MAX_AXES]> = Vec::with_capacity(2 * BATCH);
+    loop {
+        // The best boxes waiting, up to BATCH of them, while they can beat
+        // the threshold.
+        batch.clear();
+        let size = (popped / GROWTH).clamp(1, BATCH);
+        while batch.len() < size {
+            match queue.pop() {
+                Some((score, node)) if score >= col.threshold() => batch.push(node),
+                _ => break,
+            }
+        }
+        popped += batch.len();
+        if batch.is_empty() {
+            return;
+        }
+        // Both halves of every box to split, bounded together (by two
+        // threads when a helper is free; the results are the same).
+        halves.clear();
+        for node in &batch {
+            if let Some(i) = widest(&node.ranges[..n_axes]) {
+                let (s, e) = node.ranges[i];
+                let mid = s + (e - s) / 2;
+                for half in [(s, mid), (mid, e)] {
+                    let mut r = node.ranges;
+                    r[i] = half;
+                    halves.push(r);
+                }
+            }
+        }
+        let bounded: Vec<Option<Bound>> = match help.crew(b, axes, n_axes, halves.len()) {
+            Some(crew) => crew.run(&v.to_vec(), &halves, |v, r| {
+                space.v.clear();
+                space.v.extend_from_slice(v);
+                b.bound(&mut space, axes, &r[..n_axes])
+            }),
+            None => halves
+                .iter()
+                .map(|r| {
+                    space.v.clear();
+                    space.v.extend_from_slice(v);
+                    b.bound(&mut space, axes, &r[..n_axes])
+                })
+                .collect(),
+        };
+        // In the order popped: single configurations are visited (which
+        // may raise the threshold), the halves that can still beat it wait.
+        let mut bounded = halves.iter().zip(bounded);
+        for node in batch.drain(..) {
+            let ranges = &node.ranges[..n_axes];
+            if widest(ranges).is_some() {
+                for (r, bd) in bounded.by_ref().take(2) {
+                    col.effort.corner_checks += 1;
+                    let Some(bd) = bd else {
+                        continue;
+                    };
+                    let score = b.scorer.score(&bd.metrics);
+                    if score >= col.threshold() {
+                        queue.push(
+                            score,
+                            Node {
+                                ranges: *r,
+                                rd_window: bd.rd_window,
+                                rd_scores: bd.rd_scores,
+                            },
+                        );
+                    }
+                }
+                continue;
+            }
             for (a, r) in axes.iter().zip(ranges) {
                 for (k, &pos) in a.positions.iter().enumerate() {
                     v[pos] = a.option(r.0)[k];
@@ -2154,29 +2254,86 @@ fn branch(
                 (Some(w), Some(k)) => visit_window(col, v, k, w, &node.rd_scores, shelf),
                 _ => visit(col, v, run_k, false, shelf),
             }
-            continue;
-        };
-        let (s, e) = ranges[i];
-        let mid = s + (e - s) / 2;
-        for half in [(s, mid), (mid, e)] {
-            let mut r = node.ranges;
-            r[i] = half;
-            col.effort.corner_checks += 1;
-            scratch.copy_from_slice(v);
-            if let Some(bd) = b.bound(axes, &r[..n_axes], &mut scratch) {
-                let score = b.scorer.score(&bd.metrics);
-                if score >= col.threshold() {
-                    queue.push(
-                        score,
-                        Node {
-                            ranges: r,
-                            rd_window: bd.rd_window,
-                            rd_scores: bd.rd_scores,
-                        },
-                    );
+        }
+    }
+}
+
+/// Boxes taken from the queue at a time: their halves are bounded
+/// together, shared with a helper thread where one is free. Taking 32 at
+/// a time, not one, costs at most a few bounds more (a box taken before a
+/// design raised the threshold), well under 1 % on the examples.
+const BATCH: usize = 32;
+
+/// The batch grows from one box by one per this many boxes taken, so a
+/// short search stays nearly one box at a time.
+const GROWTH: usize = 16;
+
+/// A batch with fewer halves to bound than this is bounded here alone (a
+/// hand-over costs more than it saves there).
+const SHARE_FROM: usize = 8;
+
+/// Closes the crew when the search ends, however it ends, so that the
+/// helper leaves and its thread can be joined.
+struct Closing<'a, C, J, R>(&'a Crew<C, J, R>);
+
+impl<C, J, R> Drop for Closing<'_, C, J, R> {
+    fn drop(&mut self) {
+        self.0.close();
+    }
+}
+
+/// The context and job of a shared bound: the values of every position
+/// (ohms) and a box's index ranges.
+type BoundCrew = Crew<Vec<f64>, [(usize, usize); MAX_AXES], Option<Bound>>;
+
+/// The helper of one topology's search ([`super::aid`]), claimed from a
+/// spare core when a batch is large enough to share.
+struct Help<'scope, 'env> {
+    scope: &'scope std::thread::Scope<'scope, 'env>,
+    crew: &'env BoundCrew,
+    spare: Option<&'env Spare>,
+    thread: Option<std::thread::ScopedJoinHandle<'scope, ()>>,
+}
+
+impl<'env> Help<'_, 'env> {
+    /// The crew to share a batch of `jobs` bounds with, when a helper runs
+    /// or a spare core lets one start.
+    fn crew(
+        &mut self,
+        b: &'env Bounds<'_>,
+        axes: &'env [Axis],
+        n_axes: usize,
+        jobs: usize,
+    ) -> Option<&'env BoundCrew> {
+        if jobs < SHARE_FROM {
+            return None;
+        }
+        if self.thread.is_none() {
+            let spare = self.spare?;
+            if !spare.claim() {
+                return None;
+            }
+            let crew = self.crew;
+            let started = std::thread::Builder::new().spawn_scoped(self.scope, move || {
+                let mut space = Scratch::default();
+                crew.serve(|v: &Vec<f64>, r: &[(usize, usize); MAX_AXES]| {
+                    space.v.clear();
+                    space.v.extend_from_slice(v);
+                    b.bound(&mut space, axes, &r[..n_axes])
+                });
+                // The core is free again for another search.
+                spare.add();
+            });
+            match started {
+                Ok(h) => self.thread = Some(h),
+                Err(_) => {
+                    spare.add();
+                    self.spare = None;
+                    return None;
                 }
             }
         }
+        Some(self.crew)
     }
 }
 
@@ -2350,8 +2507,6 @@ mod tests {
         }
     }
 
-    // The source points of a box enumerate every combination once: with
-    // widths 3 and 2 there are 6, each (axis 0, axis 1) pair exactly once.
     #[test]
     fn fold_grid_follows_the_shelf_length_within_its_bounds() {
         // E24 over 10 Ω–22 MΩ (153 values), E96 over 1 Ω–10 MΩ (673).
@@ -2363,6 +2518,8 @@ mod tests {
         assert_eq!(fold_points(Some(100), 13), FOLDS);
     }
 
+    // The source points of a box enumerate every combination once: with
+    // widths 3 and 2 there are 6, each (axis 0, axis 1) pair exactly once.
     #[test]
     fn source_points_cover_each_combination_once() {
         let ranges = [(4usize, 7usize), (10, 12)];

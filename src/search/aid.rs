@@ -40,8 +40,13 @@ impl Spare {
 struct Shift<C, J, R> {
     /// Batch number: the helper starts a batch when it changes.
     batch: u64,
+    /// The batch the helper has begun.
+    started: u64,
     /// The batch the helper has finished (its results are in `results`).
     finished: u64,
+    /// A batch the search finished alone before the helper began it: the
+    /// helper skips it.
+    withdrawn: u64,
     closed: bool,
     /// The context every job of the batch shares, and the jobs.
     context: Option<C>,
@@ -68,7 +73,9 @@ impl<C, J, R> Crew<C, J, R> {
         Crew {
             shift: Mutex::new(Shift {
                 batch: 0,
+                started: 0,
                 finished: 0,
+                withdrawn: 0,
                 closed: false,
                 context: None,
                 jobs: Vec::new(),
@@ -130,6 +137,10 @@ impl<C: Clone, J: Clone, R> Crew<C, J, R> {
                     return;
                 }
                 seen = s.batch;
+                if s.withdrawn == seen {
+                    continue;
+                }
+                s.started = seen;
                 (s.context.clone(), s.jobs.clone())
             };
             let mut done = Vec::new();
@@ -159,14 +170,21 @@ impl<C: Clone, J: Clone, R> Crew<C, J, R> {
         };
         let mut mine = Vec::new();
         self.take(jobs.len(), |i| mine.push((i, work(context, &jobs[i]))));
-        // The helper may still hold a job: wait until it reports.
+        // A helper that has begun the batch may still hold a job: wait
+        // until it reports. One that has not begun it is told to skip it
+        // (no wake-up to wait for: every job is done here).
         let theirs = {
             let mut s = self.lock();
-            // (A closed crew has no helper left to wait for.)
-            while s.finished != batch && !s.closed {
-                s = self.finished.wait(s).unwrap_or_else(|e| e.into_inner());
+            if s.started != batch {
+                s.withdrawn = batch;
+                Vec::new()
+            } else {
+                // (A closed crew has no helper left to wait for.)
+                while s.finished != batch && !s.closed {
+                    s = self.finished.wait(s).unwrap_or_else(|e| e.into_inner());
+                }
+                std::mem::take(&mut s.results)
             }
-            std::mem::take(&mut s.results)
         };
         let mut out: Vec<Option<R>> = (0..jobs.len()).map(|_| None).collect();
         for (i, r) in mine.into_iter().chain(theirs) {
@@ -189,16 +207,34 @@ mod tests {
     #[test]
     fn a_crew_does_each_job_once_in_order() {
         let crew: Crew<u64, u64, u64> = Crew::new();
+        let by_helper = AtomicUsize::new(0);
+        // Jobs slow enough (20 µs) for the helper to wake inside a batch.
+        let job = |c: &u64, j: &u64| {
+            std::thread::sleep(std::time::Duration::from_micros(20));
+            c * 1000 + j * j
+        };
         std::thread::scope(|sc| {
-            sc.spawn(|| crew.serve(|c, j| c * 1000 + j * j));
-            for batch in 1..=50u64 {
-                let jobs: Vec<u64> = (0..batch).collect();
-                let got = crew.run(&batch, &jobs, |c, j| c * 1000 + j * j);
+            sc.spawn(|| {
+                crew.serve(|c, j| {
+                    by_helper.fetch_add(1, Ordering::Relaxed);
+                    job(c, j)
+                })
+            });
+            // Sizes 1 to 40, then 40 again until the helper has taken a
+            // job (it may be slow to start on a busy machine).
+            let sizes = (1..=40u64).chain(std::iter::repeat_n(40, 2000));
+            for (batch, size) in (1u64..).zip(sizes) {
+                if batch > 40 && by_helper.load(Ordering::Relaxed) > 0 {
+                    break;
+                }
+                let jobs: Vec<u64> = (0..size).collect();
+                let got = crew.run(&batch, &jobs, job);
                 let want: Vec<u64> = jobs.iter().map(|j| batch * 1000 + j * j).collect();
                 assert_eq!(got, want);
             }
             crew.close();
         });
+        assert!(by_helper.load(Ordering::Relaxed) > 0);
     }
 
     #[test]

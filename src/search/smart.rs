@@ -22,7 +22,9 @@
 //!    A box whose bounds break a requirement, or whose score bound is below
 //!    the entry threshold, is dropped; the others wait in a queue, best
 //!    bound first, and are split until single configurations.
-//! 2. Gate resistors that only set Zin are chosen last by rule; divider
+//! 2. Gate resistors that only set Zin are chosen last by rule (with a
+//!    source resistance, which makes Zin enter the gain, they are a box
+//!    axis that the bias does not see); divider
 //!    pairs with the same ratio are reduced to the largest placement (same
 //!    bias, more Zin, less current) unless a source resistance makes Zin
 //!    enter the gain.
@@ -994,7 +996,8 @@ impl Bounds<'_> {
             return None;
         }
         // The nominal Zin range of the box where the divider (Zin = R1∥R2)
-        // or a gate resistor (Zin = RG, fixed for the whole box) sets it.
+        // or a gate resistor (Zin = RG: a box axis with a source
+        // resistance, else fixed for the whole box) sets it.
         let zin_nominal = axes
             .iter()
             .zip(ranges)
@@ -1913,24 +1916,41 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             });
         }
     }
-    // Outer (not boxed) choices: RD in drain feedback, gate resistors when a
-    // source resistance makes Zin enter the gain.
+    // Gate resistors when a source resistance makes Zin enter the gain (only
+    // through Zin/(Zin + Rsig): the bias does not see them). Their scale
+    // stops at ten times zin_min, where the Zin term of the score is full,
+    // so above it they are split last (only the share, a fraction of a per
+    // cent with a 600 Ω source and 100 kΩ, still moves).
+    if !gate_free {
+        for &g in &gates {
+            let opts: Vec<f64> = shelf
+                .values
+                .iter()
+                .copied()
+                .filter(|&x| {
+                    x * (1.0 - shelf.tolerance_of(x)) >= p.spec.zin_min_ohm * (1.0 - SLACK)
+                })
+                .collect();
+            let zin = (!t.input_at_source()).then(|| ZinTable {
+                nominal: Ranged::new(opts.clone()),
+                up: Ranged::new(opts.iter().map(|x| x * (1.0 - t_max)).collect()),
+                down: Ranged::new(opts.iter().map(|x| x * (1.0 + t_max)).collect()),
+            });
+            let full = 10.0 * p.spec.zin_min_ohm;
+            axes.push(Axis {
+                positions: vec![g],
+                scale: opts.iter().map(|x| x.min(full).ln()).collect(),
+                options: opts,
+                gate_axis: false,
+                zin,
+            });
+        }
+    }
+    // Outer (not boxed) choices: RD in drain feedback.
     let mut outer: Vec<(usize, Vec<f64>)> = Vec::new();
     for (i, r) in roles.iter().enumerate() {
-        match r {
-            Role::Drain if feedback => outer.push((i, shelf.values.clone())),
-            Role::Gate if !gate_free => outer.push((
-                i,
-                shelf
-                    .values
-                    .iter()
-                    .copied()
-                    .filter(|&x| {
-                        x * (1.0 - shelf.tolerance_of(x)) >= p.spec.zin_min_ohm * (1.0 - SLACK)
-                    })
-                    .collect(),
-            )),
-            _ => {}
+        if *r == Role::Drain && feedback {
+            outer.push((i, shelf.values.clone()));
         }
     }
     if axes.iter().any(|a| a.options.is_empty()) || outer.iter().any(|o| o.1.is_empty()) {
@@ -1969,7 +1989,11 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         lambda_free: p.corners.iter().all(|c| c.law.lambda_per_v == 0.0),
         src_axes: (0..axes.len())
             .filter(|&i| {
-                !axes[i].gate_axis && axes[i].positions.iter().any(|k| !t.bypassed().contains(k))
+                !axes[i].gate_axis
+                    && axes[i]
+                        .positions
+                        .iter()
+                        .any(|&k| roles[k] == Role::Source && !t.bypassed().contains(&k))
             })
             .collect(),
         folds: fold_points(col.fold_points, shelf.values.len()),
@@ -2044,7 +2068,8 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
     });
 }
 
-/// Most axes a box has: the divider and the source resistors.
+/// Most axes a box has: the divider, the source resistors and a gate
+/// resistor (no topology has all three; see the test).
 const MAX_AXES: usize = 1 + MAX_SOURCES;
 
 /// A box waiting in the branch-and-bound queue.
@@ -2386,15 +2411,23 @@ fn diagnose(
     run_k: Option<usize>,
     shelf: &Shelf,
 ) {
-    let per_axis = match axes.len() {
+    // A gate resistor that only sets Zin takes its largest value; the grid
+    // spans the bias axes.
+    let roles = col.t.roles();
+    let gate = |a: &Axis| a.positions.iter().all(|&k| roles[k] == Role::Gate);
+    let per_axis = match axes.iter().filter(|a| !gate(a)).count() {
         0 => 1,
         1 => 64,
         2 => 16,
         _ => 6,
     };
-    let picks: Vec<Vec<usize>> = ranges
+    let picks: Vec<Vec<usize>> = axes
         .iter()
-        .map(|&(s, e)| {
+        .zip(ranges)
+        .map(|(a, &(s, e))| {
+            if gate(a) {
+                return vec![e - 1];
+            }
             let n = e - s;
             let k = per_axis.min(n).max(1);
             (0..k).map(|i| s + i * n / k).collect()
@@ -2516,6 +2549,22 @@ mod tests {
         assert_eq!(fold_points(Some(1), 673), 2);
         assert_eq!(fold_points(Some(12), 13), 12);
         assert_eq!(fold_points(Some(100), 13), FOLDS);
+    }
+
+    // A box holds the divider, the source resistors and the gate resistors
+    // (when a source resistance makes Zin enter the gain) in fixed arrays
+    // of MAX_AXES.
+    #[test]
+    fn no_topology_has_more_box_axes_than_a_node_holds() {
+        for t in TOPOLOGIES {
+            let roles = t.roles();
+            let divider = usize::from(roles.contains(&Role::DivTop));
+            let others = roles
+                .iter()
+                .filter(|r| matches!(r, Role::Source | Role::Gate))
+                .count();
+            assert!(divider + others <= MAX_AXES, "{}: {roles:?}", t.id());
+        }
     }
 
     // The source points of a box enumerate every combination once: with

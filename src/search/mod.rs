@@ -313,6 +313,8 @@ pub(crate) struct Collector<'a> {
     pub(crate) top_scores: Vec<f64>,
     /// Free cores a long search may take a helper thread from.
     pub(crate) spare: Option<&'a aid::Spare>,
+    /// The run's divider pairs, shared by the topologies.
+    pub(crate) pairs: Option<&'a smart::PairCache>,
 }
 
 impl Collector<'_> {
@@ -464,6 +466,7 @@ fn search_one(
     opts: &Options,
     index: usize,
     spare: Option<&aid::Spare>,
+    pairs: Option<&smart::PairCache>,
 ) -> (Result<Vec<Design>, Rejection>, Effort) {
     let t = TOPOLOGIES[index];
     if let Some(r) = structural(p, t) {
@@ -481,6 +484,7 @@ fn search_one(
         effort: Effort::default(),
         top_scores: Vec::new(),
         spare,
+        pairs,
     };
     match opts.method {
         Method::Smart => smart::search(&mut col, shelf),
@@ -574,7 +578,9 @@ pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, S
     }
     let mut all = Vec::new();
     let mut rejected = Vec::new();
-    for (_, (outcome, e)) in each_topology(|i, spare| search_one(&p, &shelf, opts, i, Some(spare)))
+    let pairs = smart::PairCache::default();
+    for (_, (outcome, e)) in
+        each_topology(|i, spare| search_one(&p, &shelf, opts, i, Some(spare), Some(&pairs)))
     {
         effort.configurations += e.configurations;
         effort.corner_checks += e.corner_checks;
@@ -625,10 +631,11 @@ mod tests {
             .position(|t| t.id() == "divider-split")
             .unwrap();
         let opts = Options::default();
-        let alone = search_one(&p, &shelf, &opts, index, None);
+        let alone = search_one(&p, &shelf, &opts, index, None, None);
         let spare = aid::Spare::default();
         spare.add();
-        let helped = search_one(&p, &shelf, &opts, index, Some(&spare));
+        let pairs = smart::PairCache::default();
+        let helped = search_one(&p, &shelf, &opts, index, Some(&spare), Some(&pairs));
         // The helper has left and given its core back.
         assert!(spare.claim());
         let (Ok(a), Ok(b)) = (&alone.0, &helped.0) else {

@@ -46,6 +46,7 @@ use crate::analysis::{
 use crate::device::SquareLaw;
 use crate::rank::{Metrics, Scorer};
 use crate::topology::{Gate, Rails, Role, SignalContext, Topology};
+use std::sync::{Arc, OnceLock};
 
 /// Divider pairs (R_top, R_bottom): all shelf pairs, or with `dominance`
 /// only the largest placement of each ratio. With `zin_floor` > 0 pairs
@@ -101,6 +102,49 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f6
         }));
     }
     out
+}
+
+/// The divider pairs of one search run, kept per (Zin floor, dominance):
+/// several topologies use the same list, and on a long shelf building it
+/// takes milliseconds. Each list is sorted by the divider ratio
+/// R2/(R1 + R2), then R1, so that the gate-voltage sort of each topology,
+/// which moves with the ratio, runs over nearly sorted input.
+#[derive(Default)]
+pub(crate) struct PairCache {
+    lists: std::sync::Mutex<Vec<(PairKey, Arc<OnceLock<PairList>>)>>,
+}
+
+/// Divider pairs (R_top, R_bottom), ohms.
+type PairList = Arc<Vec<(f64, f64)>>;
+
+/// The Zin floor's bits and the dominance flag of a pair list.
+type PairKey = (u64, bool);
+
+impl PairCache {
+    /// The pairs of `shelf` for `zin_floor` (ohms) and `dominance`, built
+    /// on first use (see [`divider_pairs`]).
+    fn pairs(&self, shelf: &Shelf, zin_floor: f64, dominance: bool) -> PairList {
+        let key = (zin_floor.to_bits(), dominance);
+        let slot = {
+            let mut lists = self.lists.lock().unwrap_or_else(|e| e.into_inner());
+            match lists.iter().find(|(k, _)| *k == key) {
+                Some((_, slot)) => Arc::clone(slot),
+                None => {
+                    let slot = Arc::new(OnceLock::new());
+                    lists.push((key, Arc::clone(&slot)));
+                    slot
+                }
+            }
+        };
+        // Built outside the lock: another list can be built meanwhile.
+        let list = slot.get_or_init(|| {
+            let mut pairs = divider_pairs(shelf, zin_floor, dominance);
+            let ratio = |&(r1, r2): &(f64, f64)| r2 / (r1 + r2);
+            pairs.sort_unstable_by(|x, y| ratio(x).total_cmp(&ratio(y)).then(x.0.total_cmp(&y.0)));
+            Arc::new(pairs)
+        });
+        Arc::clone(list)
+    }
 }
 
 /// One axis of the box: the positions it sets and its options, sorted so
@@ -1875,9 +1919,13 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             0.0
         };
         let dominance = !(zin_from_divider && rsig > 0.0);
-        let mut pairs: Vec<(f64, f64, f64)> = divider_pairs(shelf, floor, dominance)
-            .into_iter()
-            .map(|(r1, r2)| {
+        let list = match col.pairs {
+            Some(cache) => cache.pairs(shelf, floor, dominance),
+            None => Arc::new(divider_pairs(shelf, floor, dominance)),
+        };
+        let mut pairs: Vec<(f64, f64, f64)> = list
+            .iter()
+            .map(|&(r1, r2)| {
                 v[a] = r1;
                 v[b] = r2;
                 let vg = match t.bias(&v, &p.rails).gate {
@@ -2568,6 +2616,31 @@ mod tests {
                 .filter(|r| matches!(r, Role::Source | Role::Gate))
                 .count();
             assert!(divider + others <= MAX_AXES, "{}: {roles:?}", t.id());
+        }
+    }
+
+    // The run's pair cache builds each list once and gives the same pairs
+    // as `divider_pairs`, sorted by the ratio R2/(R1 + R2).
+    #[test]
+    fn the_pair_cache_builds_each_list_once() {
+        use crate::catalog::{Catalog, ESeries};
+        let cat = Catalog::from_series(ESeries::E12, Some(0.05), 1e3, 1e6).unwrap();
+        let shelf = Shelf::new(&cat, Some(0.05), 1e3, 1e6);
+        let cache = PairCache::default();
+        let a = cache.pairs(&shelf, 10e3, true);
+        assert!(Arc::ptr_eq(&a, &cache.pairs(&shelf, 10e3, true)));
+        let b = cache.pairs(&shelf, 10e3, false);
+        assert!(!Arc::ptr_eq(&a, &b) && b.len() > a.len());
+        for (list, dominance) in [(&a, true), (&b, false)] {
+            let mut want = divider_pairs(&shelf, 10e3, dominance);
+            let mut got = list.to_vec();
+            let by_values =
+                |x: &(f64, f64), y: &(f64, f64)| x.0.total_cmp(&y.0).then(x.1.total_cmp(&y.1));
+            want.sort_by(by_values);
+            got.sort_by(by_values);
+            assert_eq!(got, want);
+            let ratio = |&(r1, r2): &(f64, f64)| r2 / (r1 + r2);
+            assert!(list.windows(2).all(|w| ratio(&w[0]) <= ratio(&w[1])));
         }
     }
 

@@ -798,8 +798,13 @@ impl Bounds<'_> {
         let vds_floor = s.vds_min_v;
         let cases = &self.cases;
         let n = cases.len();
-        work.clear();
-        work.resize(n, PerCase::default());
+        // Every figure a bound reads it writes first (the λ > 0 ones only
+        // where λ > 0, which holds for the whole search), so the space is
+        // cleared only when its size changes, not for every bound.
+        if work.len() != n {
+            work.clear();
+            work.resize(n, PerCase::default());
+        }
         let w = &mut work[..];
         set(v, &low_id);
         for (i, c) in cases.iter().enumerate() {

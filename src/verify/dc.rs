@@ -378,18 +378,14 @@ pub(crate) fn run(net: &Netlist, opts: &DcOptions) -> Result<DcSolution, SolveEr
         tried.push(method.id());
         let result = match method {
             DcMethod::Newton => {
-                let seeded = opts.fet_currents_a.as_ref().and_then(|id| {
+                // From the guessed currents first, then with the FETs open.
+                let mut from = |id: &[f64]| {
                     let mut x = sys.guess_with_currents(id);
-                    sys.newton(&mut x, 1.0, 0.0, opts, &mut stats)
-                        .ok()
-                        .map(|()| x)
-                });
-                match seeded {
-                    Some(x) => Ok(x),
-                    None => {
-                        let mut x = sys.first_guess();
-                        sys.newton(&mut x, 1.0, 0.0, opts, &mut stats).map(|()| x)
-                    }
+                    sys.newton(&mut x, 1.0, 0.0, opts, &mut stats).map(|()| x)
+                };
+                match opts.fet_currents_a.as_deref().map(&mut from) {
+                    Some(Ok(x)) => Ok(x),
+                    _ => from(&[]),
                 }
             }
             DcMethod::SourceStepping => sys.source_stepping(opts, &mut stats),

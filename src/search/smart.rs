@@ -52,7 +52,11 @@ use std::sync::{Arc, OnceLock};
 /// only the largest placement of each ratio. With `zin_floor` > 0 pairs
 /// whose parallel resistance is below it are dropped.
 fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f64)> {
-    let vals = &shelf.values;
+    let all = &shelf.values;
+    // R1∥R2 lies below both R1 and R2, so a pair that reaches the floor
+    // has both values at or above it: the values below it are skipped.
+    let first = all.partition_point(|&r| r < zin_floor * (1.0 - SLACK));
+    let vals = &all[first..];
     // The ratio's key: ln(R2/R1) to 1e-9, from a table of logarithms.
     let logs: Vec<f64> = vals.iter().map(|r| r.ln()).collect();
     // A pair whose two values are both on the shelf ten times larger too
@@ -63,34 +67,46 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f6
         .iter()
         .map(|&r| {
             let x = 10.0 * r;
-            let i = vals.partition_point(|&v| v < x * (1.0 - 1e-12));
-            i < vals.len() && (vals[i] / x - 1.0).abs() < 1e-12
+            let i = all.partition_point(|&v| v < x * (1.0 - 1e-12));
+            i < all.len() && (all[i] / x - 1.0).abs() < 1e-12
         })
         .collect();
-    let mut out: Vec<(f64, f64)> = Vec::new();
-    // With dominance: (ratio key, R1, R2) of every candidate, then the
-    // largest R1 of each key (the first in ascending R2 on a tie).
-    let mut keyed: Vec<(i64, f64, f64)> = Vec::new();
-    for ((&r1, &l1), &t1) in vals.iter().zip(&logs).zip(&tenfold) {
-        for ((&r2, &l2), &t2) in vals.iter().zip(&logs).zip(&tenfold) {
-            if dominance && t1 && t2 {
-                continue;
-            }
-            if zin_floor > 0.0 && r1 * r2 / (r1 + r2) < zin_floor * (1.0 - SLACK) {
-                continue;
-            }
-            if dominance {
-                keyed.push((((l2 - l1) * 1e9).round() as i64, r1, r2));
-            } else {
-                out.push((r1, r2));
-            }
+    // The values without a tenfold (indices into `vals`).
+    let tops: Vec<usize> = (0..vals.len()).filter(|&j| !tenfold[j]).collect();
+    let every: Vec<usize> = (0..vals.len()).collect();
+    let kept = |i: usize, j: usize| {
+        zin_floor <= 0.0 || vals[i] * vals[j] / (vals[i] + vals[j]) >= zin_floor * (1.0 - SLACK)
+    };
+    if !dominance {
+        let mut out = Vec::new();
+        for i in 0..vals.len() {
+            out.extend(
+                (0..vals.len())
+                    .filter(|&j| kept(i, j))
+                    .map(|j| (vals[i], vals[j])),
+            );
         }
+        return out;
     }
-    if dominance {
-        // Sorted by key alone (the R2/R1 order, which is also nearly the
-        // gate-voltage order the caller sorts by next).
-        keyed.sort_unstable_by_key(|x| x.0);
-        out.extend(keyed.chunk_by(|a, b| a.0 == b.0).map(|same| {
+    // (ratio key, R1, R2) of every candidate (a member without a tenfold),
+    // then the largest R1 of each key (the first in ascending R2 on a tie:
+    // the pick does not depend on the order within a key).
+    let mut keyed: Vec<(i64, f64, f64)> = Vec::new();
+    for i in 0..vals.len() {
+        let partners = if tenfold[i] { &tops } else { &every };
+        keyed.extend(
+            partners
+                .iter()
+                .filter(|&&j| kept(i, j))
+                .map(|&j| (((logs[j] - logs[i]) * 1e9).round() as i64, vals[i], vals[j])),
+        );
+    }
+    // Sorted by key alone (the R2/R1 order, which is also nearly the
+    // gate-voltage order the caller sorts by next).
+    keyed.sort_unstable_by_key(|x| x.0);
+    keyed
+        .chunk_by(|a, b| a.0 == b.0)
+        .map(|same| {
             let best = same.iter().fold(same[0], |b, x| {
                 if x.1 > b.1 || (x.1 == b.1 && x.2 < b.2) {
                     *x
@@ -99,9 +115,8 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f6
                 }
             });
             (best.1, best.2)
-        }));
-    }
-    out
+        })
+        .collect()
 }
 
 /// The divider pairs of one search run, kept per (Zin floor, dominance):
@@ -405,7 +420,7 @@ fn scan_rd(
     } else {
         None
     };
-    let mut best: Option<(f64, Metrics)> = None;
+    let mut best: Option<f64> = None;
     let mut rd_scores = Vec::new();
     let mut fixed = None;
     let end = window.map_or(capped, |w| w.1);
@@ -420,15 +435,15 @@ fn scan_rd(
         if single {
             rd_scores.push(sc);
         }
-        if best.as_ref().is_none_or(|(b, _)| sc > *b) {
-            best = Some((sc, m));
+        if best.is_none_or(|b| sc > b) {
+            best = Some(sc);
         }
         if !single && strong - g >= g - weak {
             break;
         }
     }
-    best.map(|(_, metrics)| Bound {
-        metrics,
+    best.map(|score| Bound {
+        score,
         rd_window: window,
         rd_scores,
     })
@@ -490,9 +505,10 @@ fn source_point(ranges: impl Iterator<Item = (usize, usize)>, i: usize) -> [usiz
     pt
 }
 
-/// The better of two bounds of parts of one box: the metrics of the one
-/// with the higher score, the drain resistor window spanning both.
-fn best_of(acc: Option<Bound>, b: Bound, score_of: impl Fn(&Metrics) -> f64) -> Option<Bound> {
+/// The better of two bounds of parts of one box: the higher score, the
+/// drain resistor window spanning both. (A single configuration has one
+/// part, so its per-RD scores are never merged.)
+fn best_of(acc: Option<Bound>, b: Bound) -> Option<Bound> {
     let Some(a) = acc else {
         return Some(b);
     };
@@ -500,19 +516,16 @@ fn best_of(acc: Option<Bound>, b: Bound, score_of: impl Fn(&Metrics) -> f64) -> 
         (Some(x), Some(y)) => Some((x.0.min(y.0), x.1.max(y.1))),
         (x, y) => x.or(y),
     };
-    let mut keep = if score_of(&b.metrics) > score_of(&a.metrics) {
-        b
-    } else {
-        a
-    };
+    let mut keep = if b.score > a.score { b } else { a };
     keep.rd_window = window;
     Some(keep)
 }
 
 /// The bound of one box.
 struct Bound {
-    /// Optimistic metrics: no point of the box does better on any of them.
-    metrics: Metrics,
+    /// The score of optimistic metrics (no point of the box does better on
+    /// any of them): no point of the box scores higher.
+    score: f64,
     /// For a single configuration whose drain resistor was scanned: shelf
     /// indices `[first, last)` of the drain resistors that can work.
     rd_window: Option<(usize, usize)>,
@@ -645,6 +658,9 @@ struct Scratch {
     /// The values of every position, ohms (the box's own are set by the
     /// bound).
     v: Vec<f64>,
+    /// The headroom lines of the drain-resistor scan: (VDS at RD = 0,
+    /// volts; its fall per ohm of RD(1 + t), amps).
+    lines: Vec<(f64, f64)>,
 }
 
 /// λ > 0, one case of one cell: across the folds of the fold grid the
@@ -776,6 +792,7 @@ impl Bounds<'_> {
             envelopes,
             fold_gds,
             v,
+            lines,
         } = scratch;
         let v = &mut v[..];
         let p = self.p;
@@ -1336,6 +1353,22 @@ impl Bounds<'_> {
         // The optimistic metrics with drain resistor `x` and the given
         // gain error and spread bounds: VDS at the tolerance extremes P and
         // P', the power and Zin of the box.
+        // That VDS is VDD − VS − RD(1 + t)·ID per case and point, a line
+        // (a, b) = (VDD − VS, ID) in RD(1 + t). A line that starts no lower
+        // and falls no faster than another is never the lowest for RD ≥ 0
+        // (rounding keeps both orders), so only the others are kept.
+        lines.clear();
+        for (c, case) in w.iter().zip(cases) {
+            for j in 0..2 {
+                let (a, b) = (case.rails.vdd_v - c.vs_at[j], c.id_at[j]);
+                if lines.iter().any(|&(a2, b2)| a2 <= a && b2 >= b) {
+                    continue;
+                }
+                lines.retain(|&(a2, b2)| !(a <= a2 && b >= b2));
+                lines.push((a, b));
+            }
+        }
+        let lines = &*lines;
         let rd_metrics = |x: f64, err: f64, spread: f64, zin_ratio: f64| {
             let mut m = optimistic(s, 1.0, 0.0, power_lb, 1.0, self.parts_floor);
             m.gain_error = err;
@@ -1343,12 +1376,10 @@ impl Bounds<'_> {
             let rd_up = x * (1.0 + self.tol);
             // (Plain comparisons: this runs for every RD of every scan.)
             let mut room = f64::INFINITY;
-            for (c, case) in w.iter().zip(cases) {
-                for j in 0..2 {
-                    let x = case.rails.vdd_v - c.vs_at[j] - rd_up * c.id_at[j];
-                    if x < room {
-                        room = x;
-                    }
+            for &(a, b) in lines {
+                let x = a - rd_up * b;
+                if x < room {
+                    room = x;
                 }
             }
             m.headroom_v = room - s.vds_min_v;
@@ -1386,11 +1417,12 @@ impl Bounds<'_> {
                 self.parts_floor,
             );
             m.gain_error = m.gain_error.max(level);
-            Bound {
-                metrics: m,
-                rd_window: None,
-                rd_scores: Vec::new(),
-            }
+            m
+        };
+        let bound_of = |m: Metrics| Bound {
+            score: self.scorer.score(&m),
+            rd_window: None,
+            rd_scores: Vec::new(),
         };
         // Each source point (group) with each Zin slice.
         let cells = || groups().flat_map(|g| slices.iter().map(move |sl| (g, sl)));
@@ -1472,7 +1504,7 @@ impl Bounds<'_> {
                         |x, err, spread| rd_metrics(x, err.max(level_g), spread, zin_ratio),
                         &self.scorer,
                     ) {
-                        Some(b) => at_rd = best_of(at_rd, b, |m| self.scorer.score(m)),
+                        Some(b) => at_rd = best_of(at_rd, b),
                         None => continue,
                     }
                 }
@@ -1486,9 +1518,9 @@ impl Bounds<'_> {
                 level_min = level_min.min(level_g);
                 if self.rd.is_none() {
                     let (err, spread) = gain_terms(max_lb, min_ub2, g_target);
-                    let mut b = unscanned(ratio_g, level_g.max(err), zin_ratio);
-                    b.metrics.gain_spread = b.metrics.gain_spread.max(spread);
-                    follower = best_of(follower, b, |m| self.scorer.score(m));
+                    let mut m = unscanned(ratio_g, level_g.max(err), zin_ratio);
+                    m.gain_spread = m.gain_spread.max(spread);
+                    follower = best_of(follower, bound_of(m));
                 }
             }
             if !any {
@@ -1630,7 +1662,7 @@ impl Bounds<'_> {
                     |x, err, spread| rd_metrics(x, err, spread, zin_ratio),
                     &self.scorer,
                 ) {
-                    at_rd = best_of(at_rd, b, |m| self.scorer.score(m));
+                    at_rd = best_of(at_rd, b);
                 }
             }
             // No group has a drain resistor that can work.
@@ -1639,7 +1671,7 @@ impl Bounds<'_> {
         if at_rd.is_some() {
             return at_rd;
         }
-        Some(unscanned(ratio, level_error, zin_ratio))
+        Some(bound_of(unscanned(ratio, level_error, zin_ratio)))
     }
 }
 
@@ -2092,7 +2124,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
                 } else {
                     bounds
                         .bound_with(&mut Scratch::default(), &v, &axes, &ranges)
-                        .map(|bd| (bounds.scorer.score(&bd.metrics), bd.rd_window, bd.rd_scores))
+                        .map(|bd| (bd.score, bd.rd_window, bd.rd_scores))
                 };
                 if let Some((score, rd_window, rd_scores)) = root {
                     let mut whole = [(0, 0); MAX_AXES];
@@ -2313,7 +2345,7 @@ fn branch<'env>(
                     let Some(bd) = bd else {
                         continue;
                     };
-                    let score = b.scorer.score(&bd.metrics);
+                    let score = bd.score;
                     if score >= col.threshold() {
                         queue.push(
                             score,

@@ -1975,9 +1975,19 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         // (VG, R1) orders the pairs totally: R1 and VG fix R2.
         pairs.sort_unstable_by(|x, y| x.0.total_cmp(&y.0).then(x.1.total_cmp(&y.1)));
         let floor_v = 0.01 * p.spec.supply.vdd_v.abs().max(1e-3);
+        // (Every VG at or below 0 V has the same measure: on a divider
+        // that feeds a negative gate, the whole list; a long list when the
+        // divider does not set Zin.)
+        let floor_ln = floor_v.ln();
         let scale: Vec<f64> = pairs
             .iter()
-            .map(|x| (x.0.max(0.0) + floor_v).ln())
+            .map(|x| {
+                if x.0 > 0.0 {
+                    (x.0 + floor_v).ln()
+                } else {
+                    floor_ln
+                }
+            })
             .collect();
         let options: Vec<f64> = pairs.iter().flat_map(|&(_, r1, r2)| [r1, r2]).collect();
         let zin = zin_from_divider.then(|| {

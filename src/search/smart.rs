@@ -1350,10 +1350,8 @@ impl Bounds<'_> {
         // A single configuration keeps the bound of each RD, so the visit
         // can skip those that cannot be kept.
         let single = ranges.iter().all(|r| r.1 - r.0 == 1);
-        // The optimistic metrics with drain resistor `x` and the given
-        // gain error and spread bounds: VDS at the tolerance extremes P and
-        // P', the power and Zin of the box.
-        // That VDS is VDD − VS − RD(1 + t)·ID per case and point, a line
+        // The headroom of the scan below: VDS at the tolerance extremes P
+        // and P' is VDD − VS − RD(1 + t)·ID per case and point, a line
         // (a, b) = (VDD − VS, ID) in RD(1 + t). A line that starts no lower
         // and falls no faster than another is never the lowest for RD ≥ 0
         // (rounding keeps both orders), so only the others are kept.
@@ -1369,6 +1367,9 @@ impl Bounds<'_> {
             }
         }
         let lines = &*lines;
+        // The optimistic metrics with drain resistor `x` and the given
+        // gain error and spread bounds: the least VDS over those lines, the
+        // power and Zin of the box.
         let rd_metrics = |x: f64, err: f64, spread: f64, zin_ratio: f64| {
             let mut m = optimistic(s, 1.0, 0.0, power_lb, 1.0, self.parts_floor);
             m.gain_error = err;

@@ -102,8 +102,9 @@ fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> Vec<(f64, f6
         );
     }
     // Sorted by key alone (the R2/R1 order, which is also nearly the
-    // gate-voltage order the caller sorts by next).
-    keyed.sort_unstable_by_key(|x| x.0);
+    // gate-voltage order the caller sorts by next), by radix: the keys are
+    // integers.
+    radsort::sort_by_key(&mut keyed, |x| x.0);
     keyed
         .chunk_by(|a, b| a.0 == b.0)
         .map(|same| {

@@ -1,0 +1,126 @@
+//! Unit tests of the default search's pieces.
+
+use super::*;
+use crate::topology::TOPOLOGIES;
+
+// The box bound keeps source points in fixed arrays of MAX_SOURCES.
+#[test]
+fn no_topology_has_more_source_resistors_than_the_bound_holds() {
+    for t in TOPOLOGIES {
+        let n = t.roles().iter().filter(|r| **r == Role::Source).count();
+        assert!(n <= MAX_SOURCES, "{}: {n} source resistors", t.id());
+    }
+}
+
+#[test]
+fn fold_grid_follows_the_shelf_length_within_its_bounds() {
+    // E24 over 10 Ω–22 MΩ (153 values), E96 over 1 Ω–10 MΩ (673).
+    assert_eq!(fold_points(None, 153), 8);
+    assert_eq!(fold_points(None, 673), 21);
+    assert_eq!(fold_points(None, 100_000), FOLDS);
+    assert_eq!(fold_points(Some(1), 673), 2);
+    assert_eq!(fold_points(Some(12), 13), 12);
+    assert_eq!(fold_points(Some(100), 13), FOLDS);
+}
+
+// A box holds the divider, the source resistors and the gate resistors
+// (when a source resistance makes Zin enter the gain) in fixed arrays
+// of MAX_AXES.
+#[test]
+fn no_topology_has_more_box_axes_than_a_node_holds() {
+    for t in TOPOLOGIES {
+        let roles = t.roles();
+        let divider = usize::from(roles.contains(&Role::DivTop));
+        let others = roles
+            .iter()
+            .filter(|r| matches!(r, Role::Source | Role::Gate))
+            .count();
+        assert!(divider + others <= MAX_AXES, "{}: {roles:?}", t.id());
+    }
+}
+
+// The run's pair cache builds each list once and gives the same pairs
+// as `divider_pairs`, sorted by the ratio R2/(R1 + R2).
+#[test]
+fn the_pair_cache_builds_each_list_once() {
+    use crate::catalog::{Catalog, ESeries};
+    let cat = Catalog::from_series(ESeries::E12, Some(0.05), 1e3, 1e6).unwrap();
+    let shelf = Shelf::new(&cat, Some(0.05), 1e3, 1e6);
+    let cache = PairCache::default();
+    let a = cache.pairs(&shelf, 10e3, true);
+    assert!(Arc::ptr_eq(&a, &cache.pairs(&shelf, 10e3, true)));
+    let b = cache.pairs(&shelf, 10e3, false);
+    assert!(!Arc::ptr_eq(&a, &b) && b.len() > a.len());
+    for (list, dominance) in [(&a, true), (&b, false)] {
+        let mut want = divider_pairs(&shelf, 10e3, dominance);
+        let mut got = list.to_vec();
+        let by_values =
+            |x: &(f64, f64), y: &(f64, f64)| x.0.total_cmp(&y.0).then(x.1.total_cmp(&y.1));
+        want.sort_by(by_values);
+        got.sort_by(by_values);
+        assert_eq!(got, want);
+        let ratio = |&(r1, r2): &(f64, f64)| r2 / (r1 + r2);
+        assert!(list.windows(2).all(|w| ratio(&w[0]) <= ratio(&w[1])));
+    }
+}
+
+// The source points of a box enumerate every combination once: with
+// widths 3 and 2 there are 6, each (axis 0, axis 1) pair exactly once.
+#[test]
+fn the_kept_headroom_lines_give_the_same_least_value() {
+    // The least of a − b·x over all lines against over those kept, at
+    // x from 0 up, for pseudo-random lines (a 64-bit LCG, Knuth's
+    // MMIX constants), some with equal starts or slopes.
+    let mut state = 0x2545_f491_4f6c_dd1du64;
+    let mut next = || {
+        state = state
+            .wrapping_mul(6_364_136_223_846_793_005)
+            .wrapping_add(1_442_695_040_888_963_407);
+        (state >> 11) as f64 / (1u64 << 53) as f64
+    };
+    let mut dropped = 0;
+    for _ in 0..200 {
+        let all: Vec<(f64, f64)> = (0..16)
+            .map(|_| {
+                let a = (next() * 8.0).round() * 1.5 + next() * 1e-3;
+                let b = (next() * 4.0).round() * 1e-4;
+                (a, b)
+            })
+            .collect();
+        let mut kept = Vec::new();
+        for &l in &all {
+            add_lowest(&mut kept, l);
+        }
+        dropped += all.len() - kept.len();
+        let least = |ls: &[(f64, f64)], x: f64| {
+            ls.iter()
+                .map(|&(a, b)| a - x * b)
+                .fold(f64::INFINITY, f64::min)
+        };
+        for x in [0.0, 1.0, 1e3, 4.7e4, 1e5, 1e6, 1e7] {
+            assert_eq!(
+                least(&all, x).to_bits(),
+                least(&kept, x).to_bits(),
+                "x = {x}"
+            );
+        }
+    }
+    // The filter did drop lines (the check above is not vacuous).
+    assert!(dropped > 200, "dropped {dropped}");
+}
+
+#[test]
+fn source_points_cover_each_combination_once() {
+    let ranges = [(4usize, 7usize), (10, 12)];
+    let mut seen = Vec::new();
+    for i in 0..6 {
+        let pt = source_point(ranges.iter().copied(), i);
+        seen.push((pt[0], pt[1]));
+    }
+    seen.sort();
+    seen.dedup();
+    assert_eq!(seen.len(), 6);
+    assert!(seen
+        .iter()
+        .all(|&(a, b)| (4..7).contains(&a) && (10..12).contains(&b)));
+}

@@ -21,7 +21,13 @@ pub(crate) struct Loaded {
 pub(crate) fn spec(path: &Path) -> Result<Loaded> {
     let text =
         std::fs::read_to_string(path).with_context(|| format!("reading `{}`", path.display()))?;
-    let spec = crate::spec::parse(&text).with_context(|| format!("in `{}`", path.display()))?;
+    let mut spec = crate::spec::parse(&text).with_context(|| format!("in `{}`", path.display()))?;
+    // A specification without a `name` is titled by its file.
+    if spec.name.trim().is_empty() {
+        if let Some(stem) = path.file_stem() {
+            spec.name = stem.to_string_lossy().into_owned();
+        }
+    }
     let catalog = match &spec.parts.catalog {
         CatalogChoice::Series(s) => Catalog::from_series(
             *s,

@@ -174,7 +174,13 @@ pub(crate) fn parse_document(text: &str) -> Result<Vec<Entry>, SpecError> {
         let message = if e.message().contains(DATETIME_KEY) {
             "a date-time is not a value any key of a specification takes".to_string()
         } else {
-            e.message().trim().replace('\n', "; ")
+            let mut m = e.message().trim().replace('\n', "; ");
+            if let Some(word) = text.lines().nth(line - 1).and_then(bare_value) {
+                m.push_str(&format!(
+                    "; a value with a prefix letter is a string in TOML: write \"{word}\""
+                ));
+            }
+            m
         };
         SpecError::Syntax { line, col, message }
     })?;
@@ -187,6 +193,21 @@ pub(crate) fn parse_document(text: &str) -> Result<Vec<Entry>, SpecError> {
     };
     set_lines(&mut entries, text);
     Ok(entries)
+}
+
+/// The first unquoted word after the `=` of a TOML line that is an
+/// engineering value but not a TOML number (`10k`, `4k7`, `2.2M`), the
+/// likeliest cause of a syntax error on that line.
+fn bare_value(line: &str) -> Option<&str> {
+    let (_, value) = line.split_once('=')?;
+    let value = value.split('#').next().unwrap_or("");
+    if value.contains(['"', '\'']) {
+        return None;
+    }
+    value
+        .split(|c: char| c.is_whitespace() || "[]{},=".contains(c))
+        .filter(|w| !w.is_empty() && w.parse::<f64>().is_err())
+        .find(|w| crate::units::parse_value(w).is_ok())
 }
 
 #[cfg(test)]
@@ -217,6 +238,25 @@ mod tests {
             panic!("{e:?}")
         };
         assert_eq!((line, col), (2, 5));
+    }
+
+    #[test]
+    fn an_unquoted_suffix_value_gets_a_hint() {
+        // TOML 1.0 (toml.io): a bare `10k` is not a value; a string is.
+        for (text, word) in [
+            ("[load]\nrl = 10k\n", "10k"),
+            ("[device]\nidss = [2m, 8m] # mA\n", "2m"),
+            ("[device]\nidss = { min = 2m, max = 8m }\n", "2m"),
+            ("[parts]\nrange = [10, 4k7]\n", "4k7"),
+        ] {
+            let e = parse_document(text).unwrap_err().to_string();
+            assert!(e.contains(&format!("write \"{word}\"")), "{text:?}: {e}");
+        }
+        // No hint where the cause is elsewhere.
+        for text in ["b = = 2\n", "rl = \"10k\" x\n", "d = 1979-05-27x\n"] {
+            let e = parse_document(text).unwrap_err().to_string();
+            assert!(!e.contains("write \""), "{text:?}: {e}");
+        }
     }
 
     #[test]

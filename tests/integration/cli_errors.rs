@@ -116,6 +116,14 @@ fn spec_cases() -> Vec<Case> {
             want: "in `DIR/spec.toml`: TOML syntax error at line 10, column 10: invalid basic string",
         },
         Case {
+            // TOML 1.0 (toml.io): a bare `10k` is no value; the hint names
+            // the fix.
+            what: "syntax: suffix value not quoted",
+            spec: Spec::Text(with("rl = \"10k\"", "rl = 10k")),
+            files: &[],
+            want: "in `DIR/spec.toml`: TOML syntax error at line 10, column 8: expected newline, `#`; a value with a prefix letter is a string in TOML: write \"10k\"",
+        },
+        Case {
             what: "syntax: key given twice",
             spec: Spec::Text(with("gain = 4.0", "gain = 4.0\ngain = 5.0")),
             files: &[],

@@ -131,3 +131,23 @@ fn no_color_means_no_escapes() {
     }
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+#[allow(clippy::unwrap_used)]
+fn a_spec_without_a_name_is_titled_by_its_file() {
+    // (Common practice: a report names what it is about.)
+    let dir = temp_dir("streams-untitled");
+    let text = infeasible().replace("name = \"base\"\n", "");
+    assert!(!text.contains("name ="));
+    std::fs::write(dir.join("front-end.toml"), text).unwrap();
+    let out = run(&["design", "front-end.toml"], &dir);
+    let stdout = String::from_utf8(out.stdout).unwrap();
+    assert_eq!(
+        stdout.lines().next(),
+        Some("front-end — E6 values, worst-case check"),
+        "{stdout}"
+    );
+    let out = run(&["design", "front-end.toml", "--format", "json"], &dir);
+    let json: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(json["name"], "front-end");
+}

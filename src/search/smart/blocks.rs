@@ -124,9 +124,34 @@ pub(super) fn gain_terms(strong: f64, weak: f64, g: f64) -> (f64, f64) {
     )
 }
 
-/// The drain resistor scanned over the shelf for one box. `gains(RD)`
-/// gives (a |gain| some point of every candidate reaches at least, one
-/// some point reaches at most), both rising with RD; `metrics(RD, error,
+/// Which of the two |gain| bounds a scan needs at one RD (the searches
+/// for the window's ends need one each).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(super) enum Sides {
+    /// Both bounds.
+    Both,
+    /// The bound every candidate reaches at least (the other may be NaN).
+    Strong,
+    /// The bound some point reaches at most (the other may be NaN).
+    Weak,
+}
+
+impl Sides {
+    /// The strong bound is asked for.
+    pub(super) fn strong(self) -> bool {
+        self != Sides::Weak
+    }
+
+    /// The weak bound is asked for.
+    pub(super) fn weak(self) -> bool {
+        self != Sides::Strong
+    }
+}
+
+/// The drain resistor scanned over the shelf for one box. `gains(RD,
+/// sides)` gives (a |gain| some point of every candidate reaches at
+/// least, one some point reaches at most), both rising with RD, or the
+/// one `sides` asks for; `metrics(RD, error,
 /// spread)` the optimistic metrics with that RD. The window is the run of
 /// shelf values that can keep every point inside `[lo, hi]` with RD at
 /// most `rd_cap` (`gains` is only asked for RDs up to it). For a single
@@ -143,18 +168,20 @@ pub(super) fn scan_rd(
     g: f64,
     rd_cap: f64,
     single: bool,
-    mut gains: impl FnMut(f64) -> (f64, f64),
+    mut gains: impl FnMut(f64, Sides) -> (f64, f64),
     mut metrics: impl FnMut(f64, f64, f64) -> Metrics,
     scorer: &Scorer,
 ) -> Option<Bound> {
     // (Only RDs up to the cap are probed: `gains` need not hold above.)
     let capped = values.partition_point(|&x| x <= rd_cap * (1.0 + 1e-9));
-    let first = first_true(capped, |j| gains(values[j]).1 >= lo * (1.0 - SLACK));
+    let first = first_true(capped, |j| {
+        gains(values[j], Sides::Weak).1 >= lo * (1.0 - SLACK)
+    });
     let above = |strong: f64| strong > hi * (1.0 + SLACK);
     // A box needs no window (only a single configuration's is used): its
     // scan stops where the strong side first passes `hi`, the window's end.
     let window = if single {
-        let last = first_true(capped, |j| above(gains(values[j]).0));
+        let last = first_true(capped, |j| above(gains(values[j], Sides::Strong).0));
         Some((first.min(last), last))
     } else {
         None
@@ -164,7 +191,7 @@ pub(super) fn scan_rd(
     let mut fixed = None;
     let end = window.map_or(capped, |w| w.1);
     for &x in &values[window.map_or(first, |w| w.0)..end] {
-        let (strong, weak) = gains(x);
+        let (strong, weak) = gains(x, Sides::Both);
         if !single && above(strong) {
             break;
         }

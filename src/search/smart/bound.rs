@@ -979,7 +979,7 @@ impl Bounds<'_> {
                         g_target,
                         rd_cap.min(zout_cap),
                         single,
-                        |x| model.gains(x),
+                        |x, _| model.gains(x),
                         |x, err, spread| rd_metrics(x, err.max(level_g), spread, zin_ratio),
                         &self.scorer,
                     ) {
@@ -1112,22 +1112,34 @@ impl Bounds<'_> {
                 // over the RDs up to x (both then rise with RD, as the scan
                 // needs). The folds' extremes are taken when first needed.
                 let envelopes = &mut *envelopes;
-                let mut gains = |x: f64| {
-                    let (mut strong, mut weak) = (0.0f64, f64::INFINITY);
-                    for (i, c) in w.iter().enumerate() {
-                        let (a, b) = (self.fold_lo(c, x), self.fold_hi(c, x));
-                        let mut lb = strong_at(v, i, x, a, group);
-                        if a > 0 {
-                            lb = lb.min(envelopes[i].strong_to(a - 1, |j| fold_min(v, i, j)));
+                // (A side not asked for stays NaN; the envelopes are
+                // caches, so the order they fill in does not matter.)
+                let mut gains = |x: f64, sides: Sides| {
+                    let (mut strong, mut weak) = (f64::NAN, f64::NAN);
+                    if sides.strong() {
+                        strong = 0.0;
+                        for (i, c) in w.iter().enumerate() {
+                            let a = self.fold_lo(c, x);
+                            let mut lb = strong_at(v, i, x, a, group);
+                            if a > 0 {
+                                lb = lb.min(envelopes[i].strong_to(a - 1, |j| fold_min(v, i, j)));
+                            }
+                            strong = strong.max(lb * share_lo);
                         }
-                        let mut ub = weak_at(v, i, x, b, group);
-                        if b + 1 < self.folds {
-                            ub = ub.max(
-                                envelopes[i].weak_from(b + 1, self.folds, |j| fold_max(v, i, j)),
-                            );
+                    }
+                    if sides.weak() {
+                        weak = f64::INFINITY;
+                        for (i, c) in w.iter().enumerate() {
+                            let b = self.fold_hi(c, x);
+                            let mut ub = weak_at(v, i, x, b, group);
+                            if b + 1 < self.folds {
+                                ub = ub.max(
+                                    envelopes[i]
+                                        .weak_from(b + 1, self.folds, |j| fold_max(v, i, j)),
+                                );
+                            }
+                            weak = weak.min(ub * share_hi);
                         }
-                        strong = strong.max(lb * share_lo);
-                        weak = weak.min(ub * share_hi);
                     }
                     (strong, weak)
                 };

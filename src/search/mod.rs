@@ -267,12 +267,13 @@ impl MissTracker {
             Some(c) => Rejection {
                 topology: t.id(),
                 reason: format!(
-                    "{}: {} needs {}; the closest candidate reached {} (short by {} %)",
+                    "{}: {} needs {}; the closest candidate reached {} (short by {} % of {})",
                     t.id(),
                     c.name,
                     c.required,
                     c.achieved,
-                    percent(-100.0 * c.margin)
+                    percent(-100.0 * c.margin),
+                    margin_basis(p, c.name)
                 ),
                 binding: c.name.to_string(),
                 best: c.achieved.clone(),
@@ -284,6 +285,26 @@ impl MissTracker {
                 best: "no candidate".to_string(),
             },
         }
+    }
+}
+
+/// What a requirement's normalised margin is a fraction of
+/// ([`crate::analysis::Check::margin`]), in words with the number.
+fn margin_basis(p: &Problem, name: &str) -> String {
+    let s = &p.spec;
+    match name {
+        "gain" => format!(
+            "the target |gain| {}",
+            crate::units::format_plain(s.target.gain, 4)
+        ),
+        "zin_min" => "the minimum".to_string(),
+        "id_max" | "power_max" | "zout_max" => "the limit".to_string(),
+        "vds_max" | "pd_max" => "the rating".to_string(),
+        // vds_min, saturation, gate_bias: voltages, against the span.
+        _ => format!(
+            "the {}V supply span",
+            crate::units::format_sig(s.supply.vdd_v - s.supply.vss_v, 4)
+        ),
     }
 }
 

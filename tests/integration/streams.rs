@@ -151,3 +151,52 @@ fn a_spec_without_a_name_is_titled_by_its_file() {
     let json: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(json["name"], "front-end");
 }
+
+/// The number after `key` in `text`, up to the next space.
+fn number_after(text: &str, key: &str) -> f64 {
+    let rest = &text[text.find(key).map_or(0, |i| i + key.len())..];
+    let word: String = rest
+        .chars()
+        .take_while(|c| c.is_ascii_digit() || *c == '.' || *c == '-')
+        .collect();
+    word.parse().unwrap_or(f64::NAN)
+}
+
+#[test]
+#[allow(clippy::unwrap_used)]
+fn a_shortfall_says_what_it_is_a_fraction_of() {
+    // The line-gain example: |gain| 5 ± 30 % from 24 V, VDS >= 3 V.
+    // Arithmetic only: the percentage is the shortfall over the basis
+    // the reason names (common practice: a percentage names its base).
+    let dir = temp_dir("streams-shortfall");
+    let example = concat!(env!("CARGO_MANIFEST_DIR"), "/examples/line-gain.toml");
+    let out = run(&["design", example, "--format", "json"], &dir);
+    let json: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let reasons: Vec<&str> = json["infeasible"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(|r| r["reason"].as_str())
+        .collect();
+    let mut seen = 0;
+    for r in &reasons {
+        let pct = number_after(r, "(short by ");
+        if r.contains("vds_min needs VDS >= 3V") {
+            assert!(r.ends_with("% of the 24V supply span)"), "{r}");
+            let reached = number_after(r, "reached ");
+            let want = 100.0 * (3.0 - reached) / 24.0;
+            assert!((pct - want).abs() <= 0.006, "{r}: want {want}");
+            seen += 1;
+        } else if r.contains("gain needs |gain| in 3.5..6.5") {
+            assert!(r.ends_with("% of the target |gain| 5)"), "{r}");
+            let reached = r.split("reached ").nth(1).unwrap();
+            let (lo, rest) = reached.split_once("..").unwrap();
+            let lo: f64 = lo.parse().unwrap();
+            let hi = number_after(rest, "");
+            let want = 100.0 * (3.5 - lo).max(hi - 6.5) / 5.0;
+            assert!((pct - want).abs() <= 0.03, "{r}: want {want}");
+            seen += 1;
+        }
+    }
+    assert!(seen >= 2, "{reasons:?}");
+}

@@ -359,6 +359,28 @@ pub struct Check {
     pub margin: f64,
     /// True when the requirement holds (with the inclusive slack).
     pub pass: bool,
+    /// What the margin is a fraction of, in words with the number ("the
+    /// target |gain| 5", "the 24V supply span", "the limit").
+    pub basis: String,
+}
+
+/// What requirement `which`'s normalised margin ([`margins`]) is a
+/// fraction of, in words with the number.
+fn margin_basis(s: &ValidSpec, which: usize) -> String {
+    match REQUIREMENTS[which] {
+        "gain" => format!(
+            "the target |gain| {}",
+            crate::units::format_plain(s.target.gain, 4)
+        ),
+        "polarity" => "holds (0) or not (-100 %)".to_string(),
+        "zin_min" => "the minimum".to_string(),
+        "vds_max" | "pd_max" => "the rating".to_string(),
+        "vds_min" | "saturation" | "gate_bias" => format!(
+            "the {} supply span",
+            fmt(s.supply.vdd_v - s.supply.vss_v, "V")
+        ),
+        _ => "the limit".to_string(),
+    }
 }
 
 fn fmt(v: f64, unit: &str) -> String {
@@ -547,6 +569,7 @@ pub fn assess(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> Vec<Check> {
                 achieved,
                 margin: m.margin,
                 pass: m.pass,
+                basis: margin_basis(s, m.which),
             }
         })
         .collect()

@@ -67,6 +67,23 @@ fn corner_row(p: &PointView) -> Vec<String> {
     ]
 }
 
+/// What the margins of `checks` are fractions of, one line per base
+/// (in the order the checks come), under a heading line.
+pub(super) fn margin_note(checks: &[crate::analysis::Check]) -> String {
+    let mut groups: Vec<(&str, Vec<&str>)> = Vec::new();
+    for c in checks {
+        match groups.iter_mut().find(|g| g.0 == c.basis) {
+            Some(g) => g.1.push(c.name),
+            None => groups.push((&c.basis, vec![c.name])),
+        }
+    }
+    let mut out = String::from("margin, as a fraction of:\n");
+    for (basis, names) in groups {
+        out.push_str(&format!("  {basis}: {}\n", names.join(", ")));
+    }
+    out
+}
+
 /// `analyze`: per-corner operating points, then the requirement checks.
 pub fn analysis(v: &AnalysisView, order: &[&str]) -> String {
     let mut out = String::new();
@@ -116,6 +133,7 @@ pub fn analysis(v: &AnalysisView, order: &[&str]) -> String {
     out.push_str("worst case over every device corner and resistor-tolerance extreme:\n");
     out.push_str(&c.to_string());
     out.push('\n');
+    out.push_str(&margin_note(&v.checks));
     let failing: Vec<&str> = v
         .checks
         .iter()

@@ -273,7 +273,7 @@ impl MissTracker {
                     c.required,
                     c.achieved,
                     percent(-100.0 * c.margin),
-                    margin_basis(p, c.name)
+                    c.basis
                 ),
                 binding: c.name.to_string(),
                 best: c.achieved.clone(),
@@ -285,26 +285,6 @@ impl MissTracker {
                 best: "no candidate".to_string(),
             },
         }
-    }
-}
-
-/// What a requirement's normalised margin is a fraction of
-/// ([`crate::analysis::Check::margin`]), in words with the number.
-fn margin_basis(p: &Problem, name: &str) -> String {
-    let s = &p.spec;
-    match name {
-        "gain" => format!(
-            "the target |gain| {}",
-            crate::units::format_plain(s.target.gain, 4)
-        ),
-        "zin_min" => "the minimum".to_string(),
-        "id_max" | "power_max" | "zout_max" => "the limit".to_string(),
-        "vds_max" | "pd_max" => "the rating".to_string(),
-        // vds_min, saturation, gate_bias: voltages, against the span.
-        _ => format!(
-            "the {}V supply span",
-            crate::units::format_sig(s.supply.vdd_v - s.supply.vss_v, 4)
-        ),
     }
 }
 

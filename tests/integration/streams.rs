@@ -200,3 +200,39 @@ fn a_shortfall_says_what_it_is_a_fraction_of() {
     }
     assert!(seen >= 2, "{reasons:?}");
 }
+
+#[test]
+#[allow(clippy::unwrap_used)]
+fn analyze_names_the_base_of_each_margin() {
+    // Arithmetic only (common practice: a percentage names its base): the
+    // vds_min margin is (worst VDS - 3 V) over the 24 V span.
+    let dir = temp_dir("streams-margins");
+    let example = concat!(env!("CARGO_MANIFEST_DIR"), "/examples/line-gain.toml");
+    let values = "R1=10M,R2=1M,RS1=3k9,RS2=43k,RD=75k";
+    let out = run(
+        &[
+            "analyze",
+            example,
+            "--topology",
+            "divider-split",
+            "--values",
+            values,
+        ],
+        &dir,
+    );
+    let stdout = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        stdout.contains("margin, as a fraction of:\n  the target |gain| 5: gain\n"),
+        "{stdout}"
+    );
+    assert!(
+        stdout.contains("  the 24V supply span: vds_min, saturation, gate_bias\n"),
+        "{stdout}"
+    );
+    let row = stdout.lines().find(|l| l.starts_with("| vds_min")).unwrap();
+    let cells: Vec<&str> = row.split('|').map(str::trim).collect();
+    let reached: f64 = cells[3].trim_end_matches('V').parse().unwrap();
+    let margin: f64 = cells[4].trim_end_matches('%').trim().parse().unwrap();
+    let want = 100.0 * (reached - 3.0) / 24.0;
+    assert!((margin - want).abs() <= 0.06, "{row}: want {want}");
+}

@@ -279,7 +279,6 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
     out.push_str(&t.to_string());
     out.push('\n');
     out.push_str(&super::table::margin_note(&v.checks));
-    out.push('\n');
 
     heading(&mut out, "Capacitors");
     match &v.caps {

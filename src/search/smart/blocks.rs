@@ -52,11 +52,10 @@ pub(super) fn shift(v: &mut [f64], roles: &[Role], tol: f64, up: bool) {
 /// any RD up to `rd_max`: `R'(RD(1+t)) / R'(RD(1−t))` with `R' = RD∥RL`
 /// falls as RD grows.
 pub(super) fn rd_ratio(rd_max: f64, rl: f64, tol: f64) -> f64 {
-    let par = |a: f64, b: f64| a * b / (a + b);
     if !rd_max.is_finite() {
         return 1.0;
     }
-    par(rd_max * (1.0 + tol), rl) / par(rd_max * (1.0 - tol), rl)
+    par2(rd_max * (1.0 + tol), rl) / par2(rd_max * (1.0 - tol), rl)
 }
 
 /// Optimistic metrics from a lower bound of the corner-to-corner |gain|

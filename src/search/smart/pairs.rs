@@ -43,43 +43,132 @@ pub(super) fn divider_pairs(shelf: &Shelf, zin_floor: f64, dominance: bool) -> V
         }
         return out;
     }
-    // (ratio key, R1, R2) of every candidate (a member without a tenfold),
-    // then the largest R1 of each key (the first in ascending R2 on a tie:
-    // the pick does not depend on the order within a key).
-    let mut keyed: Vec<(i64, f64, f64)> = Vec::new();
-    for i in 0..vals.len() {
-        let partners = if tenfold[i] { &tops } else { &every };
-        keyed.extend(
-            partners
-                .iter()
-                .filter(|&&j| kept(i, j))
-                .map(|&j| (((logs[j] - logs[i]) * 1e9).round() as i64, vals[i], vals[j])),
-        );
+    // Every candidate: a member without a tenfold (indices into `vals`).
+    let partners: Vec<&[usize]> = tenfold
+        .iter()
+        .map(|&ten| if ten { &tops[..] } else { &every[..] })
+        .collect();
+    let packing = Packing::new(&logs);
+    if packing.bits() <= u64::BITS {
+        packing.picks::<u64>(vals, &logs, &partners, kept)
+    } else {
+        packing.picks::<u128>(vals, &logs, &partners, kept)
     }
-    // Sorted by key alone (the R2/R1 order, which is also nearly the
-    // gate-voltage order the caller sorts by next), by radix: the keys are
-    // integers.
-    radsort::sort_by_key(&mut keyed, |x| x.0);
-    keyed
-        .chunk_by(|a, b| a.0 == b.0)
-        .map(|same| {
-            let best = same.iter().fold(same[0], |b, x| {
-                if x.1 > b.1 || (x.1 == b.1 && x.2 < b.2) {
-                    *x
-                } else {
-                    b
+}
+
+/// How a candidate pair becomes one integer: its ratio key (biased to be
+/// non-negative), then R1's index from the largest down, then R2's index
+/// from the smallest up. Sorting the integers (by radix) orders the keys
+/// and puts each key's pick, its largest R1 (the smallest R2 on a tie),
+/// first. The keys run in R2/R1 order, which is also nearly the
+/// gate-voltage order the caller sorts by next.
+pub(super) struct Packing {
+    /// Values on the shelf part the pairs are taken from.
+    n: u64,
+    /// Bits of one index.
+    index_bits: u32,
+    /// Added to every key: more than the largest |key|.
+    bias: i64,
+}
+
+/// The unsigned integers a candidate is packed into: `u64` where its bits
+/// fit (every E-series shelf of up to 8,191 values), else `u128`.
+pub(super) trait Word:
+    radsort::Key
+    + Copy
+    + PartialEq
+    + From<u64>
+    + std::ops::Shl<u32, Output = Self>
+    + std::ops::Shr<u32, Output = Self>
+    + std::ops::BitOr<Output = Self>
+{
+    /// The low 64 bits.
+    fn low(self) -> u64;
+}
+
+impl Word for u64 {
+    fn low(self) -> u64 {
+        self
+    }
+}
+
+impl Word for u128 {
+    fn low(self) -> u64 {
+        self as u64
+    }
+}
+
+impl Packing {
+    /// The packing for values with the given natural logarithms
+    /// (ascending).
+    pub(super) fn new(logs: &[f64]) -> Packing {
+        let n = logs.len() as u64;
+        let reach = logs.last().zip(logs.first()).map_or(0.0, |(a, b)| a - b);
+        Packing {
+            n,
+            index_bits: u64::BITS - n.leading_zeros(),
+            bias: (reach * 1e9).ceil() as i64 + 1,
+        }
+    }
+
+    /// Bits of a packed candidate.
+    pub(super) fn bits(&self) -> u32 {
+        let keys = 2 * self.bias as u64;
+        u64::BITS - keys.leading_zeros() + 2 * self.index_bits
+    }
+
+    /// The pick of each key among the candidate pairs (R1 = `vals[i]`,
+    /// R2 = `vals[j]` for every `j` of `partners[i]` that `kept(i, j)`),
+    /// in key order, each packed as `K` (wide enough for
+    /// [`Packing::bits`]); `logs` are the values' natural logarithms.
+    pub(super) fn picks<K: Word>(
+        &self,
+        vals: &[f64],
+        logs: &[f64],
+        partners: &[&[usize]],
+        kept: impl Fn(usize, usize) -> bool,
+    ) -> Vec<(f64, f64)> {
+        let b = self.index_bits;
+        let mut packed: Vec<K> = Vec::with_capacity(partners.iter().map(|p| p.len()).sum());
+        for (i, list) in partners.iter().enumerate() {
+            let top = K::from(self.n - 1 - i as u64) << b;
+            for &j in list.iter() {
+                if kept(i, j) {
+                    let key = ratio_key(logs[j] - logs[i]) + self.bias;
+                    packed.push((K::from(key as u64) << (2 * b)) | top | K::from(j as u64));
                 }
-            });
-            (best.1, best.2)
-        })
-        .collect()
+            }
+        }
+        radsort::sort(&mut packed);
+        let mask = (1u64 << b) - 1;
+        packed
+            .chunk_by(|x, y| (*x >> (2 * b)) == (*y >> (2 * b)))
+            .map(|same| {
+                let x = same[0];
+                let i = (self.n - 1 - ((x >> b).low() & mask)) as usize;
+                (vals[i], vals[(x.low() & mask) as usize])
+            })
+            .collect()
+    }
+}
+
+/// The key of a ratio from ln(R2/R1): the logarithm in units of 1e-9,
+/// rounded half away from zero (as `f64::round`, without its library
+/// call: the truncation and the remainder are exact below 2^52).
+fn ratio_key(ln_ratio: f64) -> i64 {
+    let x = ln_ratio * 1e9;
+    let whole = x as i64;
+    let rest = x - whole as f64;
+    whole + i64::from(rest >= 0.5) - i64::from(rest <= -0.5)
 }
 
 /// The divider pairs of one search run, kept per (Zin floor, dominance):
 /// several topologies use the same list, and on a long shelf building it
-/// takes milliseconds. Each list is sorted by the divider ratio
-/// R2/(R1 + R2), then R1, so that the gate-voltage sort of each topology,
-/// which moves with the ratio, runs over nearly sorted input.
+/// takes milliseconds. Each list is in the order of the divider ratio
+/// R2/(R1 + R2) (with dominance that of the ratio's key, the same but for
+/// ratios within 1e-9 of each other), so that the gate-voltage sort of
+/// each topology, which moves with the ratio, runs over nearly sorted
+/// input.
 #[derive(Default)]
 pub(crate) struct PairCache {
     lists: std::sync::Mutex<Vec<(PairKey, Arc<OnceLock<PairList>>)>>,
@@ -110,8 +199,14 @@ impl PairCache {
         // Built outside the lock: another list can be built meanwhile.
         let list = slot.get_or_init(|| {
             let mut pairs = divider_pairs(shelf, zin_floor, dominance);
-            let ratio = |&(r1, r2): &(f64, f64)| r2 / (r1 + r2);
-            pairs.sort_unstable_by(|x, y| ratio(x).total_cmp(&ratio(y)).then(x.0.total_cmp(&y.0)));
+            // (With dominance the list comes in key order already: one pair
+            // per key, the keys ascending in R2/R1.)
+            if !dominance {
+                let ratio = |&(r1, r2): &(f64, f64)| r2 / (r1 + r2);
+                pairs.sort_unstable_by(|x, y| {
+                    ratio(x).total_cmp(&ratio(y)).then(x.0.total_cmp(&y.0))
+                });
+            }
             Arc::new(pairs)
         });
         Arc::clone(list)

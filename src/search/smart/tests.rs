@@ -124,3 +124,68 @@ fn source_points_cover_each_combination_once() {
         .iter()
         .all(|&(a, b)| (4..7).contains(&a) && (10..12).contains(&b)));
 }
+
+// The largest placement of each ratio, against every pair of the shelf
+// grouped by the ratio's key (ln(R2/R1) in units of 1e-9, `f64::round`):
+// per key the largest R1, the smallest R2 on a tie, in key order. Over
+// E24 and E96 (IEC 60063) shelves, with and without a Zin floor, and a
+// stock list of uneven values (with same-ratio pairs that are not tenfolds
+// of each other: 1.5k/1k and 3.3k/2.2k).
+#[test]
+fn divider_pairs_keep_the_largest_placement_of_every_ratio() {
+    use crate::catalog::{Catalog, ESeries};
+    use std::collections::BTreeMap;
+    let reference = |shelf: &Shelf, floor: f64| {
+        let mut best: BTreeMap<i64, (f64, f64)> = BTreeMap::new();
+        for &r1 in &shelf.values {
+            for &r2 in &shelf.values {
+                if floor > 0.0 && r1 * r2 / (r1 + r2) < floor * (1.0 - SLACK) {
+                    continue;
+                }
+                let key = ((r2.ln() - r1.ln()) * 1e9).round() as i64;
+                let slot = best.entry(key).or_insert((r1, r2));
+                if r1 > slot.0 || (r1 == slot.0 && r2 < slot.1) {
+                    *slot = (r1, r2);
+                }
+            }
+        }
+        best.into_values().collect::<Vec<_>>()
+    };
+    let series = |s: ESeries, lo: f64, hi: f64| {
+        let cat = Catalog::from_series(s, Some(0.01), lo, hi).unwrap();
+        Shelf::new(&cat, Some(0.01), lo, hi)
+    };
+    let stock = Shelf {
+        name: "stock".into(),
+        values: vec![
+            100.0, 220.0, 470.0, 1e3, 1.5e3, 2.2e3, 3.3e3, 4.7e3, 6.8e3, 15e3, 22e3, 47e3, 100e3,
+        ],
+        tolerances: vec![0.05; 13],
+    };
+    let cases = [
+        (series(ESeries::E24, 10.0, 1e6), 0.0),
+        (series(ESeries::E24, 10.0, 1e6), 47e3),
+        (series(ESeries::E96, 1.0, 10e6), 0.0),
+        (series(ESeries::E96, 1.0, 10e6), 1e6),
+        (stock, 0.0),
+    ];
+    for (shelf, floor) in &cases {
+        let want = reference(shelf, *floor);
+        let got = divider_pairs(shelf, *floor, true);
+        assert_eq!(got.len(), want.len(), "{} floor {floor}", shelf.name);
+        assert_eq!(got, want, "{} floor {floor}", shelf.name);
+    }
+    // The stock list's 1.5k/1k and 3.3k/2.2k share a key: one pair is kept.
+    let got = divider_pairs(&cases[4].0, 0.0, true);
+    assert!(got.contains(&(2.2e3, 3.3e3)) && !got.contains(&(1e3, 1.5e3)));
+    // The wide packing gives the same picks as the narrow one.
+    let vals = &cases[3].0.values;
+    let logs: Vec<f64> = vals.iter().map(|r| r.ln()).collect();
+    let every: Vec<usize> = (0..vals.len()).collect();
+    let partners = vec![&every[..]; vals.len()];
+    let packing = Packing::new(&logs);
+    assert!(packing.bits() <= 64);
+    let narrow = packing.picks::<u64>(vals, &logs, &partners, |_, _| true);
+    let wide = packing.picks::<u128>(vals, &logs, &partners, |_, _| true);
+    assert_eq!(narrow, wide);
+}

@@ -10,9 +10,10 @@ pub(super) struct Axis {
     /// another (one allocation for the whole axis).
     pub(super) options: Vec<f64>,
     pub(super) gate_axis: bool,
-    /// A logarithmic measure of each option (of the gate voltage, or of
-    /// the resistance), ascending: the box is split along the axis whose
-    /// range spans the most of it, not the most options.
+    /// A positive measure of each option (of the gate voltage, or of the
+    /// resistance), ascending: the box is split along the axis whose range
+    /// spans the largest ratio of it (the widest logarithmic range), not
+    /// the most options.
     pub(super) scale: Vec<f64>,
     /// For a divider that sets Zin: its Zin tables (range extremes for the
     /// Zin bounds of a box).

@@ -122,12 +122,13 @@ pub(super) fn branch<'env>(
     queue.push(root.0, root.1);
     let mut space = Scratch::default();
     // The axis to split a box along: the one whose range spans the widest
-    // logarithmic range (None for a single configuration).
+    // logarithmic range, the largest ratio of its measure (None for a
+    // single configuration).
     let widest = |ranges: &[(usize, usize)]| {
         (0..ranges.len())
             .filter(|&i| ranges[i].1 - ranges[i].0 > 1)
             .max_by(|&i, &j| {
-                let w = |k: usize| axes[k].scale[ranges[k].1 - 1] - axes[k].scale[ranges[k].0];
+                let w = |k: usize| axes[k].scale[ranges[k].1 - 1] / axes[k].scale[ranges[k].0];
                 w(i).total_cmp(&w(j))
                     .then((ranges[i].1 - ranges[i].0).cmp(&(ranges[j].1 - ranges[j].0)))
                     .then(j.cmp(&i))

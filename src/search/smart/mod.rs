@@ -133,17 +133,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         // (Every VG at or below 0 V has the same measure: on a divider
         // that feeds a negative gate, the whole list; a long list when the
         // divider does not set Zin.)
-        let floor_ln = floor_v.ln();
-        let scale: Vec<f64> = pairs
-            .iter()
-            .map(|x| {
-                if x.0 > 0.0 {
-                    (x.0 + floor_v).ln()
-                } else {
-                    floor_ln
-                }
-            })
-            .collect();
+        let scale: Vec<f64> = pairs.iter().map(|x| x.0.max(0.0) + floor_v).collect();
         let options: Vec<f64> = pairs.iter().flat_map(|&(_, r1, r2)| [r1, r2]).collect();
         let zin = zin_from_divider.then(|| {
             let table = |a: f64, b: f64| {
@@ -174,7 +164,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             let r0 = shelf.values[0];
             axes.push(Axis {
                 positions: vec![i],
-                scale: opts.iter().map(|x| (x + r0).ln()).collect(),
+                scale: opts.iter().map(|x| x + r0).collect(),
                 options: opts,
                 gate_axis: false,
                 zin: None,
@@ -204,7 +194,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             let full = 10.0 * p.spec.zin_min_ohm;
             axes.push(Axis {
                 positions: vec![g],
-                scale: opts.iter().map(|x| x.min(full).ln()).collect(),
+                scale: opts.iter().map(|x| x.min(full)).collect(),
                 options: opts,
                 gate_axis: false,
                 zin,

@@ -151,12 +151,23 @@ pub(super) struct Scratch {
 /// bound). `strong[j]` is the smallest strong-side bound over the RDs of
 /// folds 0..=j, `weak[j]` the largest weak-side bound over those of folds
 /// j.. (each fold's RDs form one run, inside which the bound rises), so
-/// that the bounds taken with them rise with RD. NaN marks a value not
-/// taken yet: each is taken when first needed.
-#[derive(Debug, Clone, Copy, Default)]
+/// that the bounds taken with them rise with RD. Each is taken when first
+/// needed: the strong side fills from fold 0 up (`strong[..strong_known]`
+/// are taken), the weak side from the top fold down (`weak[weak_known..]`
+/// are taken, `usize::MAX` for none), so a value already taken is read
+/// without walking the folds below or above it.
+#[derive(Debug, Clone, Copy)]
 struct Envelope {
     pub(super) strong: [f64; FOLDS],
     pub(super) weak: [f64; FOLDS],
+    strong_known: usize,
+    weak_known: usize,
+}
+
+impl Default for Envelope {
+    fn default() -> Envelope {
+        Envelope::unknown()
+    }
 }
 
 impl Envelope {
@@ -165,32 +176,43 @@ impl Envelope {
         Envelope {
             strong: [f64::NAN; FOLDS],
             weak: [f64::NAN; FOLDS],
+            strong_known: 0,
+            weak_known: usize::MAX,
         }
     }
 
     /// `strong[a]`, taking the missing entries up to it from `fold_min`
     /// (a fold's smallest strong bound).
     fn strong_to(&mut self, a: usize, mut fold_min: impl FnMut(usize) -> f64) -> f64 {
-        let mut m = f64::INFINITY;
-        for (j, slot) in self.strong.iter_mut().enumerate().take(a + 1) {
-            if slot.is_nan() {
-                *slot = m.min(fold_min(j));
-            }
-            m = *slot;
+        if a < self.strong_known {
+            return self.strong[a];
         }
+        let mut m = match self.strong_known {
+            0 => f64::INFINITY,
+            k => self.strong[k - 1],
+        };
+        for j in self.strong_known..=a {
+            // (`min` keeps the non-NaN side: a taken value is never NaN.)
+            m = m.min(fold_min(j));
+            self.strong[j] = m;
+        }
+        self.strong_known = a + 1;
         m
     }
 
     /// `weak[b]`, taking the missing entries from the top fold (of `n`)
     /// down to it from `fold_max` (a fold's largest weak bound).
     fn weak_from(&mut self, b: usize, n: usize, mut fold_max: impl FnMut(usize) -> f64) -> f64 {
-        let mut m = 0.0f64;
-        for j in (b..n).rev() {
-            if self.weak[j].is_nan() {
-                self.weak[j] = m.max(fold_max(j));
-            }
-            m = self.weak[j];
+        let known = self.weak_known.min(n);
+        if b >= known {
+            return self.weak[b];
         }
+        let mut m = if known < n { self.weak[known] } else { 0.0f64 };
+        for j in (b..known).rev() {
+            m = m.max(fold_max(j));
+            self.weak[j] = m;
+        }
+        self.weak_known = b;
         m
     }
 }
@@ -232,18 +254,18 @@ impl Bounds<'_> {
     /// last VDS of the fold grid at or below the VDS floor that RD leaves,
     /// VDD − VS ceiling − RD(1 + t)·ID ceiling (it falls as RD rises).
     fn fold_lo(&self, c: &PerCase, rd: f64) -> usize {
-        (1..self.folds)
-            .take_while(|&j| rd <= c.strong_rd[j])
-            .count()
+        // (`strong_rd` falls with j: the count of the leading j ≥ 1 with
+        // RD up to it, by bisection.)
+        c.strong_rd[1..self.folds].partition_point(|&x| rd <= x)
     }
 
     /// λ > 0: the fold of the weak side with drain resistor `rd`: the
     /// first VDS of the fold grid at or above the VDS ceiling that RD
     /// leaves, VDD − VS floor − RD(1 − t)·ID floor (it falls as RD rises).
     fn fold_hi(&self, c: &PerCase, rd: f64) -> usize {
-        (0..self.folds - 1)
-            .find(|&j| rd >= c.weak_rd[j])
-            .unwrap_or(self.folds - 1)
+        // (`weak_rd` falls with j: the first j with RD at least it, by
+        // bisection; the top fold where there is none.)
+        c.weak_rd[..self.folds - 1].partition_point(|&x| rd < x)
     }
 
     /// [`Bounds::bound`] with `v` (ohms, every position) copied into the

@@ -1187,3 +1187,40 @@ impl Bounds<'_> {
         Some(bound_of(unscanned(ratio, level_error, zin_ratio)))
     }
 }
+
+#[cfg(test)]
+mod envelope_tests {
+    use super::*;
+
+    // The envelope is, by its definition, the minimum over folds 0..=a and
+    // the maximum over folds b.. of the folds' values. The reference
+    // recomputes each from scratch; each fold's value must be asked for
+    // once only, whatever order the lookups come in.
+    #[test]
+    fn envelope_reads_taken_values_and_asks_each_fold_once() {
+        let n = 9;
+        let strong_in = [5.0, 7.0, 3.0, 4.0, 1.0, 6.0, 2.0, 8.0, 0.5];
+        let weak_in = [0.2, 0.9, 0.4, 0.3, 0.8, 0.1, 0.6, 0.7, 0.5];
+        let mut e = Envelope::unknown();
+        let (mut asked_s, mut asked_w) = (vec![0; n], vec![0; n]);
+        for &(a, b) in &[(2, 6), (0, 8), (5, 3), (3, 7), (8, 0), (4, 4)] {
+            let s = e.strong_to(a, |j| {
+                asked_s[j] += 1;
+                strong_in[j]
+            });
+            let w = e.weak_from(b, n, |j| {
+                asked_w[j] += 1;
+                weak_in[j]
+            });
+            let s_ref = strong_in[..=a]
+                .iter()
+                .copied()
+                .fold(f64::INFINITY, f64::min);
+            let w_ref = weak_in[b..].iter().copied().fold(0.0, f64::max);
+            assert_eq!(s, s_ref, "strong_to({a})");
+            assert_eq!(w, w_ref, "weak_from({b})");
+        }
+        assert_eq!(asked_s, vec![1; n]);
+        assert_eq!(asked_w, vec![1; n]);
+    }
+}

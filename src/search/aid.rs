@@ -10,12 +10,16 @@
 //! work counts included, is the same either way: the helper changes the
 //! time only.
 //!
-//! The hand-over blocks (a mutex and condition variables); it does not
-//! spin. A batch holds tens of bounds, so a wake-up costs little next to
-//! it, while a spinning thread on a virtual machine can lose its core to
-//! the hypervisor.
+//! The hand-over blocks on a mutex and condition variables, after a short
+//! poll: a side that waits (the helper for the next batch, the search for
+//! the helper's last result) first reads a copy of the batch number a few
+//! thousand times, well under a millisecond, since what it waits for is
+//! often only microseconds away while a sleep and a wake-up cost tens of
+//! microseconds on a virtual machine. The poll is bounded: a thread that
+//! spun on would take the core from other work (and on a virtual machine
+//! can lose it to the hypervisor).
 
-use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering};
 use std::sync::{Condvar, Mutex, MutexGuard};
 
 /// Cores whose worker thread has run out of topologies.
@@ -65,6 +69,29 @@ pub(crate) struct Crew<C, J, R> {
     finished: Condvar,
     /// The next job index of the current batch.
     next: AtomicUsize,
+    /// The newest batch posted, and the newest the helper finished (or
+    /// `u64::MAX` once the crew is closed): copies of the shift's, read
+    /// without the lock by a side that waits a little before it sleeps.
+    posted_at: AtomicU64,
+    finished_at: AtomicU64,
+}
+
+/// Polls of a copy before a side sleeps on its condition variable: a
+/// batch's bounds take tens to hundreds of microseconds, so the next batch
+/// or the helper's last result is often only a few microseconds away,
+/// while a sleep and a wake-up cost tens of microseconds on a virtual
+/// machine.
+const POLLS: u32 = 4000;
+
+/// Poll `ready` up to [`POLLS`] times: whether it became true.
+fn poll(ready: impl Fn() -> bool) -> bool {
+    for _ in 0..POLLS {
+        if ready() {
+            return true;
+        }
+        std::hint::spin_loop();
+    }
+    ready()
 }
 
 impl<C, J, R> Crew<C, J, R> {
@@ -84,6 +111,8 @@ impl<C, J, R> Crew<C, J, R> {
             posted: Condvar::new(),
             finished: Condvar::new(),
             next: AtomicUsize::new(0),
+            posted_at: AtomicU64::new(0),
+            finished_at: AtomicU64::new(0),
         }
     }
 
@@ -96,6 +125,8 @@ impl<C, J, R> Crew<C, J, R> {
     /// End the helper's loop.
     pub(crate) fn close(&self) {
         self.lock().closed = true;
+        self.posted_at.store(u64::MAX, Ordering::Release);
+        self.finished_at.store(u64::MAX, Ordering::Release);
         self.posted.notify_all();
         self.finished.notify_all();
     }
@@ -122,12 +153,14 @@ impl<C: Clone, J: Clone, R> Crew<C, J, R> {
             fn drop(&mut self) {
                 let mut s = self.0.shift.lock().unwrap_or_else(|e| e.into_inner());
                 s.closed = true;
+                self.0.finished_at.store(u64::MAX, Ordering::Release);
                 self.0.finished.notify_all();
             }
         }
         let _leaving = Leaving(self);
         let mut seen = 0;
         loop {
+            poll(|| self.posted_at.load(Ordering::Acquire) != seen);
             let (context, jobs) = {
                 let mut s = self.lock();
                 while !s.closed && s.batch == seen {
@@ -150,6 +183,7 @@ impl<C: Clone, J: Clone, R> Crew<C, J, R> {
             let mut s = self.lock();
             s.results = done;
             s.finished = seen;
+            self.finished_at.store(seen, Ordering::Release);
             self.finished.notify_one();
         }
     }
@@ -165,6 +199,7 @@ impl<C: Clone, J: Clone, R> Crew<C, J, R> {
             s.jobs.clear();
             s.jobs.extend_from_slice(jobs);
             self.next.store(0, Ordering::Release);
+            self.posted_at.store(s.batch, Ordering::Release);
             self.posted.notify_one();
             s.batch
         };
@@ -174,6 +209,10 @@ impl<C: Clone, J: Clone, R> Crew<C, J, R> {
         // until it reports. One that has not begun it is told to skip it
         // (no wake-up to wait for: every job is done here).
         let theirs = {
+            let begun = self.lock().started == batch;
+            if begun {
+                poll(|| self.finished_at.load(Ordering::Acquire) >= batch);
+            }
             let mut s = self.lock();
             if s.started != batch {
                 s.withdrawn = batch;

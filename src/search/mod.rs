@@ -234,12 +234,24 @@ pub(crate) struct MissTracker {
 
 impl MissTracker {
     /// The largest shortfall among the failing requirements (−∞ if none).
+    /// A candidate whose device is off at some corner counts as short by at
+    /// least a whole (1, 100 %): it is no amplifier there, and its gain
+    /// shortfall (at most the window's floor over the target) would
+    /// otherwise rank it closer than a working stage that misses, say, Zin
+    /// by 99 %. (The rule keeps the order the screen relies on: a wider
+    /// envelope has the least current no higher, so it is off wherever a
+    /// narrower one is.)
     fn shortfall(p: &Problem, t: &dyn Topology, wc: &WorstCase) -> f64 {
-        margins(p, t, wc)
+        let worst = margins(p, t, wc)
             .into_iter()
             .filter(|m| !m.pass)
             .map(|m| -m.margin)
-            .fold(f64::NEG_INFINITY, f64::max)
+            .fold(f64::NEG_INFINITY, f64::max);
+        if wc.id_min_a > 0.0 {
+            worst
+        } else {
+            worst.max(1.0)
+        }
     }
 
     /// False when a candidate whose envelope contains `inner` cannot become

@@ -298,6 +298,16 @@ pub(super) fn diagnose(
         2 => 16,
         _ => 6,
     };
+    // The gate voltage of divider option `j` (the options are in VG order).
+    let vg_of = |v: &mut [f64], a: &Axis, j: usize| {
+        for (k, &pos) in a.positions.iter().enumerate() {
+            v[pos] = a.option(j)[k];
+        }
+        match col.t.bias(v, &col.p.rails).gate {
+            Gate::Fixed(x) => x,
+            Gate::FromDrain => 0.0,
+        }
+    };
     let picks: Vec<Vec<usize>> = axes
         .iter()
         .zip(ranges)
@@ -307,10 +317,38 @@ pub(super) fn diagnose(
             }
             let n = e - s;
             let k = per_axis.min(n).max(1);
-            (0..k).map(|i| s + i * n / k).collect()
+            let mut at: Vec<usize> = (0..k).map(|i| s + i * n / k).collect();
+            // Evenly spaced options are dense where the options are (a
+            // divider's list crowds the gate voltages of its middle
+            // ratios), so a divider is also taken at evenly spaced gate
+            // voltages: the narrow window where a stage works can lie
+            // where few options are.
+            if a.gate_axis && n > k {
+                let (lo, hi) = (vg_of(v, a, s), vg_of(v, a, e - 1));
+                for i in 0..k {
+                    let want = lo + (hi - lo) * (i as f64 + 0.5) / k as f64;
+                    let (mut l, mut r) = (s, e);
+                    while l < r {
+                        let m = l + (r - l) / 2;
+                        if vg_of(v, a, m) < want {
+                            l = m + 1;
+                        } else {
+                            r = m;
+                        }
+                    }
+                    at.push(l.min(e - 1));
+                }
+                at.sort_unstable();
+                at.dedup();
+            }
+            at
         })
         .collect();
     let mut idx = vec![0usize; axes.len()];
+    // Each configuration's corner-to-corner |gain| ratio at the smallest
+    // drain resistor (with λ = 0 it does not depend on RD while the device
+    // is saturated), to centre the RD of the most promising few below.
+    let mut ratios: Vec<(f64, Vec<f64>)> = Vec::new();
     loop {
         for ((a, p), &j) in axes.iter().zip(&picks).zip(&idx) {
             for (k, &pos) in a.positions.iter().enumerate() {
@@ -318,9 +356,25 @@ pub(super) fn diagnose(
             }
         }
         visit(col, v, run_k, false, shelf);
+        if let Some(k) = run_k {
+            v[k] = shelf.values[0];
+            col.effort.corner_checks += 1;
+            let wc = corners_only(col.p, col.t, v);
+            if wc.gain_abs_min > 0.0 {
+                ratios.push((wc.gain_abs_max / wc.gain_abs_min, v.to_vec()));
+            }
+        }
         let mut k = axes.len();
         loop {
             if k == 0 {
+                if let Some(k) = run_k {
+                    // (Ties keep the grid's order: a stable sort.)
+                    ratios.sort_by(|a, b| a.0.total_cmp(&b.0));
+                    for (_, values) in ratios.iter().take(CENTRED) {
+                        v.copy_from_slice(values);
+                        centred_miss(col, v, k, shelf);
+                    }
+                }
                 return;
             }
             k -= 1;
@@ -330,6 +384,43 @@ pub(super) fn diagnose(
             }
             idx[k] = 0;
         }
+    }
+}
+
+/// Configurations of the closest-miss grid, those of the smallest |gain|
+/// ratio, whose drain resistor is centred ([`centred_miss`]).
+const CENTRED: usize = 16;
+
+/// For the closest-miss answer: the drain resistor that centres the
+/// configuration's |gain| range on the window (the first whose corner
+/// minimum and maximum add up to at least the window's ends, by bisection:
+/// the sum rises with RD while the device stays saturated) and the one
+/// below it, each checked at every corner with nominal resistor values.
+/// The run of RDs a visit examines is where the nominal checks pass, so
+/// where none pass it may never come near the best placement of a wide
+/// |gain| spread.
+fn centred_miss(col: &mut Collector<'_>, v: &mut [f64], k: usize, shelf: &Shelf) {
+    let p = col.p;
+    let t = col.t;
+    let (lo, hi) = gain_window(&p.spec);
+    let mut at = |v: &mut [f64], i: usize| {
+        v[k] = shelf.values[i];
+        col.effort.corner_checks += 1;
+        corners_only(p, t, v)
+    };
+    let (mut l, mut r) = (0, shelf.values.len());
+    while l < r {
+        let m = l + (r - l) / 2;
+        let wc = at(v, m);
+        if wc.gain_abs_min + wc.gain_abs_max < lo + hi {
+            l = m + 1;
+        } else {
+            r = m;
+        }
+    }
+    for i in [l.saturating_sub(1), l.min(shelf.values.len() - 1)] {
+        let wc = at(v, i);
+        col.miss.note(p, t, v, &wc);
     }
 }
 

@@ -292,6 +292,7 @@ pub(super) fn diagnose(
     // spans the bias axes.
     let roles = col.t.roles();
     let gate = |a: &Axis| a.positions.iter().all(|&k| roles[k] == Role::Gate);
+    let alone = axes.iter().filter(|a| !gate(a)).count() == 1;
     let per_axis = match axes.iter().filter(|a| !gate(a)).count() {
         0 => 1,
         1 => 64,
@@ -317,13 +318,18 @@ pub(super) fn diagnose(
             }
             let n = e - s;
             let k = per_axis.min(n).max(1);
-            let mut at: Vec<usize> = (0..k).map(|i| s + i * n / k).collect();
+            // (On a grid of several axes a divider takes half its picks
+            // each way; alone it takes all of them both ways.)
+            let vg_picks = a.gate_axis && n > k && k > 1;
+            let k_index = if vg_picks && !alone { k.div_ceil(2) } else { k };
+            let mut at: Vec<usize> = (0..k_index).map(|i| s + i * n / k_index).collect();
             // Evenly spaced options are dense where the options are (a
             // divider's list crowds the gate voltages of its middle
             // ratios), so a divider is also taken at evenly spaced gate
             // voltages: the narrow window where a stage works can lie
             // where few options are.
-            if a.gate_axis && n > k {
+            if vg_picks {
+                let k = if alone { k } else { k / 2 };
                 let (lo, hi) = (vg_of(v, a, s), vg_of(v, a, e - 1));
                 for i in 0..k {
                     let want = lo + (hi - lo) * (i as f64 + 0.5) / k as f64;

@@ -78,6 +78,16 @@ fn gate_choice(p: &Problem, shelf: &Shelf) -> f64 {
         .unwrap_or(shelf.values[shelf.values.len() - 1])
 }
 
+/// The gate voltage the divider in `v` (ohms, every position) sets at
+/// `rails`, volts: the order of the divider axis (0 V for a drain-fed
+/// gate, which no divider sets).
+fn gate_voltage(t: &dyn Topology, v: &[f64], rails: &Rails) -> f64 {
+    match t.bias(v, rails).gate {
+        Gate::Fixed(x) => x,
+        Gate::FromDrain => 0.0,
+    }
+}
+
 /// Search one topology.
 pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
     let p = col.p;
@@ -120,11 +130,7 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
             .map(|&(r1, r2)| {
                 v[a] = r1;
                 v[b] = r2;
-                let vg = match t.bias(&v, &p.rails).gate {
-                    Gate::Fixed(x) => x,
-                    Gate::FromDrain => 0.0,
-                };
-                (vg, r1, r2)
+                (gate_voltage(t, &v, &p.rails), r1, r2)
             })
             .collect();
         // (VG, R1) orders the pairs totally: R1 and VG fix R2.

@@ -292,8 +292,9 @@ pub(super) fn diagnose(
     // spans the bias axes.
     let roles = col.t.roles();
     let gate = |a: &Axis| a.positions.iter().all(|&k| roles[k] == Role::Gate);
-    let alone = axes.iter().filter(|a| !gate(a)).count() == 1;
-    let per_axis = match axes.iter().filter(|a| !gate(a)).count() {
+    let bias_axes = axes.iter().filter(|a| !gate(a)).count();
+    let alone = bias_axes == 1;
+    let per_axis = match bias_axes {
         0 => 1,
         1 => 64,
         2 => 16,
@@ -304,10 +305,7 @@ pub(super) fn diagnose(
         for (k, &pos) in a.positions.iter().enumerate() {
             v[pos] = a.option(j)[k];
         }
-        match col.t.bias(v, &col.p.rails).gate {
-            Gate::Fixed(x) => x,
-            Gate::FromDrain => 0.0,
-        }
+        gate_voltage(col.t, v, &col.p.rails)
     };
     let picks: Vec<Vec<usize>> = axes
         .iter()

@@ -81,18 +81,28 @@ fn ro(gds_s: f64) -> f64 {
 /// `Zout = RD∥ro` (Boylestad & Nashelsky, ch. 8, bypassed self bias).
 pub fn cs_bypassed(rd: f64, zin: f64, c: &SignalContext) -> SmallSignal {
     SmallSignal {
-        av: -c.gm_s * par(&[rd, c.rl_ohm, ro(c.gds_s)]),
+        av: cs_bypassed_gain(rd, c),
         zin_ohm: zin,
         zout_ohm: par(&[rd, ro(c.gds_s)]),
     }
+}
+
+/// The gain of [`cs_bypassed`] alone, V/V.
+pub fn cs_bypassed_gain(rd: f64, c: &SignalContext) -> f64 {
+    -c.gm_s * par(&[rd, c.rl_ohm, ro(c.gds_s)])
+}
+
+/// The gain of [`cs_degenerated`] alone, V/V.
+pub fn cs_degenerated_gain(rd: f64, rs: f64, c: &SignalContext) -> f64 {
+    let rp = par(&[rd, c.rl_ohm]);
+    -c.gm_s * rp / (1.0 + c.gm_s * rs + (rp + rs) * c.gds_s)
 }
 
 /// Common source with an unbypassed source resistance `rs`:
 /// `Av = −gm·Rp / (1 + gm·RS + (Rp + RS)/ro)` with `Rp = RD∥RL`, and
 /// `Zout = RD ∥ (ro·(1 + gm·RS) + RS)` (Boylestad & Nashelsky eq. 8.25–8.26).
 pub fn cs_degenerated(rd: f64, rs: f64, zin: f64, c: &SignalContext) -> SmallSignal {
-    let rp = par(&[rd, c.rl_ohm]);
-    let av = -c.gm_s * rp / (1.0 + c.gm_s * rs + (rp + rs) * c.gds_s);
+    let av = cs_degenerated_gain(rd, rs, c);
     let r_drain = if c.gds_s > 0.0 {
         (1.0 + c.gm_s * rs) / c.gds_s + rs
     } else {

@@ -3,7 +3,9 @@
 //! a large VSS makes ID ≈ (−VSS − VGS)/RS nearly independent of the device.
 //! Needs `vss < 0`.
 
-use super::common::{cs_bypassed, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal};
+use super::common::{
+    cs_bypassed, cs_bypassed_gain, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
+};
 use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
@@ -44,6 +46,9 @@ impl Topology for CurrentSource {
     }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_bypassed(v[2], v[0], c)
+    }
+    fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
+        cs_bypassed_gain(v[2], c)
     }
     fn resistor_volts(&self, v: &[f64], _rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![0.0, op.id_a * v[1], op.id_a * v[2]]

@@ -2,7 +2,8 @@
 //! an enhancement MOSFET RS may be 0 Ω (source grounded).
 
 use super::common::{
-    cs_bypassed, divider_tap, par, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
+    cs_bypassed, cs_bypassed_gain, divider_tap, par, CapRole, Frame, NetlistInput, Rails,
+    SignalContext, SmallSignal,
 };
 use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
@@ -44,6 +45,9 @@ impl Topology for Divider {
     }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_bypassed(v[3], par(&[v[0], v[1]]), c)
+    }
+    fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
+        cs_bypassed_gain(v[3], c)
     }
     fn resistor_volts(&self, v: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![

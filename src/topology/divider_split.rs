@@ -3,8 +3,8 @@
 //! sees RS1 + RS2.
 
 use super::common::{
-    cs_degenerated, divider_tap, par, CapRole, Frame, NetlistInput, Rails, SignalContext,
-    SmallSignal,
+    cs_degenerated, cs_degenerated_gain, divider_tap, par, CapRole, Frame, NetlistInput, Rails,
+    SignalContext, SmallSignal,
 };
 use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
@@ -49,6 +49,9 @@ impl Topology for DividerSplit {
     }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_degenerated(v[4], v[2], par(&[v[0], v[1]]), c)
+    }
+    fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
+        cs_degenerated_gain(v[4], v[2], c)
     }
     fn resistor_volts(&self, v: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![

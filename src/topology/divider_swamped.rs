@@ -1,8 +1,8 @@
 //! `divider-swamped`: common source, gate biased by R1/R2, RS unbypassed.
 
 use super::common::{
-    cs_degenerated, divider_tap, par, CapRole, Frame, NetlistInput, Rails, SignalContext,
-    SmallSignal,
+    cs_degenerated, cs_degenerated_gain, divider_tap, par, CapRole, Frame, NetlistInput, Rails,
+    SignalContext, SmallSignal,
 };
 use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
@@ -38,6 +38,9 @@ impl Topology for DividerSwamped {
     }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_degenerated(v[3], v[2], par(&[v[0], v[1]]), c)
+    }
+    fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
+        cs_degenerated_gain(v[3], v[2], c)
     }
     fn resistor_volts(&self, v: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![

@@ -4,7 +4,8 @@
 //! Zin = RG. Depletion types only; needs `vss < 0`.
 
 use super::common::{
-    cs_bypassed, divider_tap, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
+    cs_bypassed, cs_bypassed_gain, divider_tap, CapRole, Frame, NetlistInput, Rails, SignalContext,
+    SmallSignal,
 };
 use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
@@ -43,6 +44,9 @@ impl Topology for FixedBias {
     }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_bypassed(v[3], v[2], c)
+    }
+    fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
+        cs_bypassed_gain(v[3], c)
     }
     fn resistor_volts(&self, v: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![-op.vg_v, op.vg_v - rails.vss_v, 0.0, op.id_a * v[3]]

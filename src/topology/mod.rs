@@ -362,6 +362,12 @@ pub trait Topology: Sync {
     fn bias(&self, values: &[f64], rails: &Rails) -> BiasNetwork;
     /// Mid-band small-signal results at an operating point.
     fn small_signal(&self, values: &[f64], ctx: &common::SignalContext) -> SmallSignal;
+    /// The mid-band voltage gain alone, V/V, signed: the same value as
+    /// [`Topology::small_signal`]'s `av`, to the bit, without Zin and Zout
+    /// (the search's bounds ask for it millions of times).
+    fn gain(&self, values: &[f64], ctx: &common::SignalContext) -> f64 {
+        self.small_signal(values, ctx).av
+    }
     /// DC voltage across each resistor at the operating point, volts, in
     /// [`Topology::parts`] order (for dissipation).
     fn resistor_volts(&self, values: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64>;
@@ -411,6 +417,31 @@ mod tests {
                     v[i] *= 37.0;
                     let b = t.small_signal(&v, &ctx);
                     assert_eq!(a, b, "{} part {}", t.id(), t.parts()[i]);
+                }
+            }
+        }
+    }
+
+    // The gain alone is the small-signal gain, to the bit, for every
+    // topology, with and without gds and a source resistance (the search's
+    // bounds use one, the full checks the other).
+    #[test]
+    fn gain_alone_is_the_small_signal_gain() {
+        for t in TOPOLOGIES {
+            for (gm, gds, rsig) in [(1e-3, 0.0, 0.0), (7e-3, 1e-5, 600.0), (0.2, 3e-4, 50e3)] {
+                let ctx = common::SignalContext {
+                    gm_s: gm,
+                    gds_s: gds,
+                    rl_ohm: 10e3,
+                    rsig_ohm: rsig,
+                };
+                for scale in [1.0, 0.01, 330.0] {
+                    let v: Vec<f64> = (0..t.parts().len())
+                        .map(|k| scale * 1e3 * (1.3 + 2.1 * k as f64))
+                        .collect();
+                    let full = t.small_signal(&v, &ctx).av;
+                    let alone = t.gain(&v, &ctx);
+                    assert_eq!(full.to_bits(), alone.to_bits(), "{} {full} {alone}", t.id());
                 }
             }
         }

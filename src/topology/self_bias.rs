@@ -1,7 +1,9 @@
 //! `self-bias`: common source, gate to ground through RG, source resistor RS
 //! bypassed. VGS = −ID·RS.
 
-use super::common::{cs_bypassed, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal};
+use super::common::{
+    cs_bypassed, cs_bypassed_gain, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
+};
 use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
@@ -39,6 +41,9 @@ impl Topology for SelfBias {
     }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_bypassed(v[2], v[0], c)
+    }
+    fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
+        cs_bypassed_gain(v[2], c)
     }
     fn resistor_volts(&self, v: &[f64], _rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![0.0, op.id_a * v[1], op.id_a * v[2]]

@@ -2,7 +2,8 @@
 //! gain depends less on gm (local series feedback).
 
 use super::common::{
-    cs_degenerated, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
+    cs_degenerated, cs_degenerated_gain, CapRole, Frame, NetlistInput, Rails, SignalContext,
+    SmallSignal,
 };
 use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
@@ -38,6 +39,9 @@ impl Topology for SelfBiasSwamped {
     }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_degenerated(v[2], v[1], v[0], c)
+    }
+    fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
+        cs_degenerated_gain(v[2], v[1], c)
     }
     fn resistor_volts(&self, v: &[f64], _rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![0.0, op.id_a * v[1], op.id_a * v[2]]

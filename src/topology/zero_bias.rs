@@ -2,7 +2,9 @@
 //! and the source grounded, so VGS = 0 and ID = IDSS (depletion MOSFET only:
 //! a JFET's gate would sit at the edge of conduction with no margin).
 
-use super::common::{cs_bypassed, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal};
+use super::common::{
+    cs_bypassed, cs_bypassed_gain, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
+};
 use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
@@ -37,6 +39,9 @@ impl Topology for ZeroBias {
     }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         cs_bypassed(v[1], v[0], c)
+    }
+    fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
+        cs_bypassed_gain(v[1], c)
     }
     fn resistor_volts(&self, v: &[f64], _rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![0.0, op.id_a * v[1]]

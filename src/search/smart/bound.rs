@@ -706,7 +706,9 @@ impl Bounds<'_> {
             }
         }
         let extremes = &extremes[..n_ext];
-        let gain_at_g = |v: &mut [f64], gm: f64, gds: f64, rd: f64, pick: &[usize], mult: f64| {
+        // The values of point `pick` of the source axes (times `mult`) and
+        // RD `rd` set in `v`, and the small-signal context with gm and gds.
+        let at = |v: &mut [f64], gm: f64, gds: f64, rd: f64, pick: &[usize], mult: f64| {
             for (&ai, &j) in src_axes.iter().zip(pick) {
                 for (k, &pos) in axes[ai].positions.iter().enumerate() {
                     v[pos] = axes[ai].option(j)[k] * mult;
@@ -715,14 +717,23 @@ impl Bounds<'_> {
             if let Some(k) = self.rd {
                 v[k] = rd;
             }
-            let ctx = SignalContext {
+            SignalContext {
                 gm_s: gm,
                 gds_s: gds,
                 rl_ohm: s.rl_ohm,
                 rsig_ohm: s.source_resistance_ohm,
-            };
+            }
+        };
+        // (|av|, Zin, Zout) there.
+        let signal_at = |v: &mut [f64], gm: f64, gds: f64, rd: f64, pick: &[usize], mult: f64| {
+            let ctx = at(v, gm, gds, rd, pick, mult);
             let ss = t.small_signal(v, &ctx);
             (ss.av.abs(), ss.zin_ohm, ss.zout_ohm)
+        };
+        // |av| alone there (most bounds ask for nothing else).
+        let gain_at_g = |v: &mut [f64], gm: f64, gds: f64, rd: f64, pick: &[usize], mult: f64| {
+            let ctx = at(v, gm, gds, rd, pick, mult);
+            t.gain(v, &ctx).abs()
         };
         let gain_at_m = |v: &mut [f64], gm: f64, rd: f64, pick: &[usize], mult: f64| {
             gain_at_g(v, gm, 0.0, rd, pick, mult)
@@ -775,7 +786,7 @@ impl Bounds<'_> {
         let mut zout_cap = f64::INFINITY;
         if let (Some(zm), Some(_)) = (s.limits.zout_max_ohm, self.rd) {
             let r0 = self.r_min;
-            let z = gain_at_m(v, w[0].g_hi_dn, r0, &extremes[0], 1.0).2;
+            let z = signal_at(v, w[0].g_hi_dn, 0.0, r0, &extremes[0], 1.0).2;
             if ((z / r0) - 1.0).abs() < 1e-12 {
                 let zm = zm * (1.0 + SLACK);
                 for c in w.iter() {
@@ -787,8 +798,8 @@ impl Bounds<'_> {
         }
         let scan = spread_free && self.rd.is_some() && w[0].g_hi_dn > 0.0 && {
             let r0 = self.r_min;
-            let a = gain_at_m(v, w[0].g_hi_dn, r0, &extremes[0], 1.0).0;
-            let b = gain_at_m(v, w[0].g_hi_dn, 2.0 * r0, &extremes[0], 1.0).0;
+            let a = gain_at_m(v, w[0].g_hi_dn, r0, &extremes[0], 1.0);
+            let b = gain_at_m(v, w[0].g_hi_dn, 2.0 * r0, &extremes[0], 1.0);
             a > 0.0 && ((b / a) / (par2(2.0 * r0, rl) / par2(r0, rl)) - 1.0).abs() < 1e-9
         };
         let scanned = scan || lambda_scan;
@@ -803,17 +814,17 @@ impl Bounds<'_> {
                 let mut zin_ub: f64 = 0.0;
                 for cmb in extremes {
                     if !scanned {
-                        ub = ub.max(gain_at(v, c.g_hi, rd_best, cmb).0);
+                        ub = ub.max(gain_at(v, c.g_hi, rd_best, cmb));
                     }
                     if need_zin && self.lambda_free {
-                        zin_ub = zin_ub.max(gain_at(v, c.g_lo, rd_best, cmb).1);
+                        zin_ub = zin_ub.max(signal_at(v, c.g_lo, 0.0, rd_best, cmb, 1.0).1);
                     } else if need_zin {
                         // With gds > 0 Zin rises with RD∥RL too (RD up at
                         // most its cap times 1 + t) and is monotone in gds:
                         // both ends of its range.
                         let rd_up = rd_best * (1.0 + self.tol_max);
                         for gds in [c.gds_lo, c.gds_hi] {
-                            zin_ub = zin_ub.max(gain_at_g(v, c.g_lo, gds, rd_up, cmb, 1.0).1);
+                            zin_ub = zin_ub.max(signal_at(v, c.g_lo, gds, rd_up, cmb, 1.0).1);
                         }
                     }
                 }
@@ -833,7 +844,7 @@ impl Bounds<'_> {
                 (0..n).all(|i| {
                     extremes
                         .iter()
-                        .any(|cmb| gain_at(v, w[i].g_hi, rd, cmb).0 >= lo * (1.0 - SLACK))
+                        .any(|cmb| gain_at(v, w[i].g_hi, rd, cmb) >= lo * (1.0 - SLACK))
                 })
             };
             let rd_need = smallest_reaching(self.r_min, rd_best, 12, 1e-4, |x| reach(v, x));
@@ -898,7 +909,7 @@ impl Bounds<'_> {
                 let gds = if self.lambda_free { 0.0 } else { c.gds_hi };
                 let z = extremes
                     .iter()
-                    .map(|cmb| gain_at_g(v, c.g_hi_dn, gds, 0.0, cmb, 1.0 + self.tol).2)
+                    .map(|cmb| signal_at(v, c.g_hi_dn, gds, 0.0, cmb, 1.0 + self.tol).2)
                     .fold(f64::INFINITY, f64::min);
                 if z > zm * (1.0 + SLACK) {
                     return None;
@@ -956,8 +967,8 @@ impl Bounds<'_> {
                     let (dn, up) = (1.0 - self.tol, 1.0 + self.tol);
                     let (mut lb, mut ub) = (f64::INFINITY, 0.0f64);
                     for cmb in group {
-                        lb = lb.min(gain_at_m(v, g_strong, rd_ref, cmb, dn).0);
-                        ub = ub.max(gain_at_m(v, g_weak, rd_ref, cmb, up).0);
+                        lb = lb.min(gain_at_m(v, g_strong, rd_ref, cmb, dn));
+                        ub = ub.max(gain_at_m(v, g_weak, rd_ref, cmb, up));
                     }
                     max_lb = lb * share_lo;
                     min_ub2 = ub * share_hi;
@@ -968,8 +979,8 @@ impl Bounds<'_> {
                         let (dn, up) = (1.0 - self.tol, 1.0 + self.tol);
                         // |gain| is monotone in gds: both ends of its range.
                         for gds in [c.gds_lo, c.gds_hi] {
-                            lb_i = lb_i.min(gain_at_g(v, c.g_lo_up, gds, rd_ref, cmb, dn).0);
-                            ub_i = ub_i.max(gain_at_g(v, c.g_hi_dn, gds, rd_ref, cmb, up).0);
+                            lb_i = lb_i.min(gain_at_g(v, c.g_lo_up, gds, rd_ref, cmb, dn));
+                            ub_i = ub_i.max(gain_at_g(v, c.g_hi_dn, gds, rd_ref, cmb, up));
                         }
                     }
                     // With a source resistance the gain from the EMF is av
@@ -1086,11 +1097,11 @@ impl Bounds<'_> {
                     let x_up = x * (1.0 + tol);
                     let mut lb = f64::INFINITY;
                     for cmb in group {
-                        let mut up = gain_at_g(v, g_floor, gds_hi, x_up, cmb, 1.0 - tol).0;
+                        let mut up = gain_at_g(v, g_floor, gds_hi, x_up, cmb, 1.0 - tol);
                         if both_gds {
                             // |gain| is monotone in gds (a ratio of linear
                             // terms) but its direction is not known here.
-                            up = up.min(gain_at_g(v, g_floor, c.gds_lo, x_up, cmb, 1.0 - tol).0);
+                            up = up.min(gain_at_g(v, g_floor, c.gds_lo, x_up, cmb, 1.0 - tol));
                         }
                         lb = lb.min(up);
                     }
@@ -1104,9 +1115,9 @@ impl Bounds<'_> {
                     let x_dn = x * (1.0 - tol);
                     let mut ub = 0.0f64;
                     for cmb in group {
-                        let mut dn = gain_at_g(v, g_ceiling, gds_lo, x_dn, cmb, 1.0 + tol).0;
+                        let mut dn = gain_at_g(v, g_ceiling, gds_lo, x_dn, cmb, 1.0 + tol);
                         if both_gds {
-                            dn = dn.max(gain_at_g(v, g_ceiling, c.gds_hi, x_dn, cmb, 1.0 + tol).0);
+                            dn = dn.max(gain_at_g(v, g_ceiling, c.gds_hi, x_dn, cmb, 1.0 + tol));
                         }
                         ub = ub.max(dn);
                     }

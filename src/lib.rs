@@ -2,9 +2,10 @@
 //!
 //! Layers, each using only those above it:
 //! `units` → `catalog` → `device` → `spec`, `netlist` → `topology` →
-//! `analysis` → `search` → `verify` → `crosscheck` → `rank` → `ratings` → `caps`
-//! (capacitor sizing, confirmed by `verify`) → `summary`, `bench` (views) →
-//! `report` → `cli`.
+//! `analysis` → `search` → `verify` → `rank` → `bench` (after synthesis:
+//! `crosscheck`, `caps` sized and confirmed by `verify`, `ratings` and
+//! cautions, `summary` and `view`: plain data) → `report` (formats only) →
+//! `cli`.
 //!
 //! ```
 //! use gatewright::topology::{by_id, evaluate, Rails};
@@ -20,18 +21,14 @@
 
 pub mod analysis;
 pub mod bench;
-pub mod caps;
 pub mod catalog;
 pub mod cli;
-pub mod crosscheck;
 pub mod device;
 pub mod netlist;
 pub mod rank;
-pub mod ratings;
 pub mod report;
 pub mod search;
 pub mod spec;
-pub mod summary;
 pub mod topology;
 pub mod units;
 pub mod verify;

@@ -13,13 +13,13 @@ use std::process::ExitCode;
 
 use super::{emit, talk};
 use crate::analysis::Problem;
-use crate::bench::{bench_view, nominal_netlist, BenchView};
+use crate::bench::summary::DesignReport;
+use crate::bench::view::{bench_view, nominal_netlist, BenchView};
 use crate::report::bom::{bom_csv, bom_rows, tolerance_text, BomRow};
 use crate::report::spice::netlist_to_spice;
 use crate::report::svg::{bias::bias_svg, response::response_svg, schematic::schematic_svg};
 use crate::report::{table, text};
 use crate::search::{Design, Outcome};
-use crate::summary::DesignReport;
 
 /// The files `--out` writes, in order.
 pub(crate) const FILES: [&str; 6] = [

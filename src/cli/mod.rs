@@ -17,11 +17,11 @@ use std::io::Write;
 use std::process::ExitCode;
 
 use crate::analysis::Problem;
+use crate::bench::summary;
 use crate::catalog::snap;
 use crate::report;
 use crate::search::{self, Options};
 use crate::spec::{R_MAX_OHM, R_MIN_OHM};
-use crate::summary;
 
 /// Smallest divider ratio `snap --ratio` takes, and 1 minus the largest
 /// (dimensionless): a 1e-6 tap is far below what 0.1 % parts resolve
@@ -211,10 +211,10 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     let full = Problem::new(&loaded.spec);
     // Every ranked design is confirmed by the independent nodal solver at
     // every device corner; one it does not confirm is never shown.
-    for w in crate::crosscheck::retain_verified(&full, &mut outcome) {
+    for w in crate::bench::crosscheck::retain_verified(&full, &mut outcome) {
         talk(&format!("warning: {w}"));
     }
-    let cautions = crate::bench::spec_cautions(&full);
+    let cautions = crate::bench::view::spec_cautions(&full);
     let report_view = summary::design_report(&full, &shelf.name, &outcome, cautions);
     if let Some(n) = a.pick {
         let n = usize::from(n);

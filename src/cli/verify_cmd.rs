@@ -12,7 +12,7 @@ use std::process::ExitCode;
 use super::args::{Format, VerifyArgs};
 use super::{emit, json, load, talk};
 use crate::analysis::Problem;
-use crate::crosscheck;
+use crate::bench::crosscheck;
 use crate::topology::Topology;
 
 /// Run the command.

@@ -2,7 +2,7 @@
 //! `designator,value,series,tolerance,rating,quantity,notes`.
 //!
 //! [`bom_rows`] turns a design and its ratings (computed in
-//! [`crate::ratings`]) into rows of text; [`bom_csv`] writes them. Quoting
+//! [`crate::bench::ratings`]) into rows of text; [`bom_csv`] writes them. Quoting
 //! follows RFC 4180: a field holding a comma, a double quote, CR or LF is
 //! put in double quotes with inner quotes doubled. Lines end in LF (RFC 4180
 //! asks for CRLF; every reader also takes LF, and the other outputs use LF).
@@ -10,10 +10,10 @@
 //! than pulled in; the tests read the output back with the `csv` crate.
 
 use crate::analysis::Problem;
-use crate::netlist::FetKind;
-use crate::ratings::{
+use crate::bench::ratings::{
     capacitor_rating_v, rate, rating_text, supply_span_v, with_unit, ResistorDuty,
 };
+use crate::netlist::FetKind;
 use crate::search::Design;
 use crate::units::format_value;
 
@@ -81,7 +81,7 @@ pub fn tolerance_text(tol: f64) -> String {
 /// Rows for a design: its resistors (0 Ω positions are wires and get no
 /// row), the capacitors given as (designator, farads), and the FET. `series`
 /// names the resistor catalog (the shelf's name); `duty` comes from
-/// [`crate::ratings::resistor_duty`]. Capacitor voltage ratings come from
+/// [`crate::bench::ratings::resistor_duty`]. Capacitor voltage ratings come from
 /// [`capacitor_rating_v`] over the supply span.
 pub fn bom_rows(
     p: &Problem,

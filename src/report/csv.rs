@@ -1,6 +1,6 @@
 //! CSV of the ranked designs: one row per design, SI units.
 
-use crate::summary::DesignReport;
+use crate::bench::summary::DesignReport;
 
 /// Header and one row per design; values as `designator=ohms` joined by `;`.
 pub fn designs(r: &DesignReport) -> String {

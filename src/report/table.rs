@@ -1,7 +1,7 @@
 //! Terminal tables (comfy-table). Pure formatting: views in, text out.
 
+use crate::bench::summary::{AnalysisView, DesignReport, PointView};
 use crate::catalog::snap::{RatioPair, SnapResult};
-use crate::summary::{AnalysisView, DesignReport, PointView};
 use crate::units::{format_plain, format_sig, format_value};
 use comfy_table::{presets, ContentArrangement, Table};
 

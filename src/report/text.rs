@@ -4,9 +4,9 @@
 
 use super::bom::BomRow;
 use super::table::{corner_table, table};
-use crate::bench::{BenchView, Connection, PartKind};
-use crate::caps::CapPlan;
-use crate::ratings::with_unit;
+use crate::bench::caps::CapPlan;
+use crate::bench::ratings::with_unit;
+use crate::bench::view::{BenchView, Connection, PartKind};
 use crate::topology::CapRole;
 use crate::units::{format_sig, format_value};
 

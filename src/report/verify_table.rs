@@ -1,7 +1,7 @@
 //! `verify`: per device corner, the closed-form and solver values side by
 //! side with their relative difference. Pure formatting: view in, text out.
 
-use crate::crosscheck::{Verification, REL_TOL};
+use crate::bench::crosscheck::{Verification, REL_TOL};
 use crate::units::format_sig;
 use comfy_table::{presets, ContentArrangement, Table};
 
@@ -89,7 +89,7 @@ pub fn verification(v: &Verification, order: &[String]) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::crosscheck::{Comparison, CornerCheck, Largest, Quantity};
+    use crate::bench::crosscheck::{Comparison, CornerCheck, Largest, Quantity};
 
     fn view(solver_id: f64) -> Verification {
         let rel = (solver_id - 2e-3_f64).abs() / 2e-3;

@@ -13,8 +13,8 @@
 
 use crate::util::{loud, ngspice_or_skip, rel, spice_op, TOLERANCE};
 use gatewright::analysis::{quick, Problem};
+use gatewright::bench::crosscheck::{crosscheck, Quantity, REL_TOL};
 use gatewright::catalog::Catalog;
-use gatewright::crosscheck::{crosscheck, Quantity, REL_TOL};
 use gatewright::report::spice::per_corner;
 use gatewright::search::{self, Design, Options, Shelf};
 use gatewright::spec::CatalogChoice;

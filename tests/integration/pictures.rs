@@ -9,10 +9,10 @@
 //! a PNG in DIR for a person to look at.
 
 use gatewright::analysis::{worst_case, Problem};
+use gatewright::bench::ratings::resistor_duty;
 use gatewright::catalog::ESeries;
 use gatewright::device::{Device, Family, ParamRange, Params, Strength};
 use gatewright::rank::Metrics;
-use gatewright::ratings::resistor_duty;
 use gatewright::report::bom::{bom_csv, bom_rows, HEADER};
 use gatewright::report::svg::bias::bias_svg;
 use gatewright::report::svg::response::response_svg;

@@ -40,8 +40,8 @@ fn output(spec: &ValidSpec, shelf: &Shelf) -> (String, Vec<String>, search::Outc
         },
     )
     .expect("search");
-    let warnings = gatewright::crosscheck::retain_verified(&full, &mut outcome);
-    let view = gatewright::summary::design_report(&full, &shelf.name, &outcome, Vec::new());
+    let warnings = gatewright::bench::crosscheck::retain_verified(&full, &mut outcome);
+    let view = gatewright::bench::summary::design_report(&full, &shelf.name, &outcome, Vec::new());
     let json = serde_json::to_string(&view).expect("json");
     let table = gatewright::report::table::design(&view);
     let csv = gatewright::report::csv::designs(&view);

@@ -8,7 +8,7 @@
 
 use crate::cli_errors::{run, temp_dir};
 use gatewright::analysis::{Problem, WorstCase};
-use gatewright::ratings::cautions;
+use gatewright::bench::ratings::cautions;
 
 const JFET: &str = "family = \"n-jfet\"\nidss = [\"2m\", \"6m\"]\nvgs_off = [\"-1\", \"-3\"]";
 

@@ -22,8 +22,8 @@
 
 use super::{colour, fallback};
 use crate::analysis::{tolerance_extremes, Problem};
+use crate::bench::ratings::with_unit;
 use crate::device::{Region, SquareLaw};
-use crate::ratings::with_unit;
 use crate::topology::{Gate, OpPoint, Topology};
 use plotters::coord::Shift;
 use plotters::prelude::*;

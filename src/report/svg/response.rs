@@ -47,7 +47,7 @@ fn decibels(x: f64) -> String {
 }
 
 fn hertz(f: f64) -> String {
-    crate::ratings::with_unit(f, "Hz")
+    crate::bench::ratings::with_unit(f, "Hz")
 }
 
 /// The response picture as SVG text. `points` are (frequency Hz, |gain|

@@ -7,11 +7,11 @@
 //! This module computes; it prints nothing and writes no file.
 
 use crate::analysis::{assess, point, Check, Problem, WorstCase};
-use crate::caps::{size, CapPlan, CapsError};
+use crate::bench::caps::{size, CapPlan, CapsError};
+use crate::bench::ratings::{cautions, resistor_duty, ResistorDuty};
+use crate::bench::summary::{design_view, DesignView, PointView};
 use crate::netlist::{Element, Netlist};
-use crate::ratings::{cautions, resistor_duty, ResistorDuty};
 use crate::search::Design;
-use crate::summary::{design_view, DesignView, PointView};
 use crate::topology::{Caps, NetlistInput};
 use crate::verify::{self, SolveError};
 use serde::Serialize;

@@ -367,7 +367,7 @@ pub fn verification(p: &Problem, t: &dyn Topology, values: &[f64]) -> Verificati
     let corners = compare(p, t, values);
     Verification {
         topology: t.id().to_string(),
-        values: crate::summary::value_map(t, values),
+        values: crate::bench::summary::value_map(t, values),
         tolerance: REL_TOL,
         agrees: corners.iter().all(CornerCheck::agrees),
         largest: largest(&corners),

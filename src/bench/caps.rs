@@ -486,7 +486,7 @@ fn rule_text(
     dominant: Option<usize>,
     rounds: usize,
 ) -> String {
-    use crate::ratings::with_unit;
+    use crate::bench::ratings::with_unit;
     let dom = dominant
         .and_then(|i| caps.get(i))
         .map_or("none".to_string(), |c| c.designator.clone());

@@ -28,6 +28,7 @@ pub mod netlist;
 pub mod rank;
 pub mod report;
 pub mod search;
+pub mod signal;
 pub mod spec;
 pub mod topology;
 pub mod units;

@@ -18,6 +18,7 @@
 
 pub mod classes;
 pub mod input;
+pub mod temperature;
 
 pub use input::{DeviceInput, ParamError};
 

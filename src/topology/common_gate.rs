@@ -4,7 +4,7 @@
 use super::common::{
     divider_tap, par, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
 };
-use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, SignalPath, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -65,6 +65,9 @@ impl Topology for CommonGate {
             zin_ohm: par(&[rs, (1.0 + rp * c.gds_s) / g]),
             zout_ohm: par(&[rd, r_drain]),
         }
+    }
+    fn signal_path(&self, v: &[f64]) -> SignalPath {
+        SignalPath::common_gate(par(&[v[0], v[1]]), v[2], v[3])
     }
     fn resistor_volts(&self, v: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![

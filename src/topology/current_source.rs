@@ -6,7 +6,7 @@
 use super::common::{
     cs_bypassed, cs_bypassed_gain, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
 };
-use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, SignalPath, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -49,6 +49,9 @@ impl Topology for CurrentSource {
     }
     fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
         cs_bypassed_gain(v[2], c)
+    }
+    fn signal_path(&self, v: &[f64]) -> SignalPath {
+        SignalPath::common_source(v[0], 0.0, v[2])
     }
     fn resistor_volts(&self, v: &[f64], _rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![0.0, op.id_a * v[1], op.id_a * v[2]]

@@ -5,7 +5,7 @@ use super::common::{
     cs_bypassed, cs_bypassed_gain, divider_tap, par, CapRole, Frame, NetlistInput, Rails,
     SignalContext, SmallSignal,
 };
-use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, SignalPath, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -48,6 +48,9 @@ impl Topology for Divider {
     }
     fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
         cs_bypassed_gain(v[3], c)
+    }
+    fn signal_path(&self, v: &[f64]) -> SignalPath {
+        SignalPath::common_source(par(&[v[0], v[1]]), 0.0, v[3])
     }
     fn resistor_volts(&self, v: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![

@@ -6,7 +6,7 @@ use super::common::{
     cs_degenerated, cs_degenerated_gain, divider_tap, par, CapRole, Frame, NetlistInput, Rails,
     SignalContext, SmallSignal,
 };
-use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, SignalPath, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -52,6 +52,9 @@ impl Topology for DividerSplit {
     }
     fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
         cs_degenerated_gain(v[4], v[2], c)
+    }
+    fn signal_path(&self, v: &[f64]) -> SignalPath {
+        SignalPath::common_source(par(&[v[0], v[1]]), v[2], v[4])
     }
     fn resistor_volts(&self, v: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![

@@ -3,7 +3,7 @@
 //! the signal sees RF as a Miller feedback resistor.
 
 use super::common::{par, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal};
-use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, SignalPath, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -58,6 +58,9 @@ impl Topology for DrainFeedback {
             zin_ohm: rf / (1.0 - av),
             zout_ohm: 1.0 / (1.0 / rd + c.gds_s + 1.0 / rloop + c.gm_s * c.rsig_ohm / rloop),
         }
+    }
+    fn signal_path(&self, v: &[f64]) -> SignalPath {
+        SignalPath::drain_feedback(v[0], v[1])
     }
     fn resistor_volts(&self, v: &[f64], _rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![0.0, op.id_a * v[1]]

@@ -4,10 +4,10 @@
 //! Zin = RG. Depletion types only; needs `vss < 0`.
 
 use super::common::{
-    cs_bypassed, cs_bypassed_gain, divider_tap, CapRole, Frame, NetlistInput, Rails, SignalContext,
-    SmallSignal,
+    cs_bypassed, cs_bypassed_gain, divider_tap, par, CapRole, Frame, NetlistInput, Rails,
+    SignalContext, SmallSignal,
 };
-use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, SignalPath, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -47,6 +47,9 @@ impl Topology for FixedBias {
     }
     fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
         cs_bypassed_gain(v[3], c)
+    }
+    fn signal_path(&self, v: &[f64]) -> SignalPath {
+        SignalPath::common_source(v[2], 0.0, v[3]).with_gate_dc_ohm(v[2] + par(&[v[0], v[1]]))
     }
     fn resistor_volts(&self, v: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![-op.vg_v, op.vg_v - rails.vss_v, 0.0, op.id_a * v[3]]

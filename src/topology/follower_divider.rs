@@ -3,7 +3,7 @@
 use super::common::{
     divider_tap, follower, par, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal,
 };
-use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, SignalPath, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -40,6 +40,9 @@ impl Topology for FollowerDivider {
     }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         follower(v[2], par(&[v[0], v[1]]), c)
+    }
+    fn signal_path(&self, v: &[f64]) -> SignalPath {
+        SignalPath::follower(par(&[v[0], v[1]]), v[2])
     }
     fn resistor_volts(&self, v: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![rails.vdd_v - op.vg_v, op.vg_v, op.id_a * v[2]]

@@ -2,7 +2,7 @@
 //! RG, RS to ground; output at the source.
 
 use super::common::{follower, CapRole, Frame, NetlistInput, Rails, SignalContext, SmallSignal};
-use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, SignalPath, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -39,6 +39,9 @@ impl Topology for FollowerSelf {
     }
     fn small_signal(&self, v: &[f64], c: &SignalContext) -> SmallSignal {
         follower(v[1], v[0], c)
+    }
+    fn signal_path(&self, v: &[f64]) -> SignalPath {
+        SignalPath::follower(v[0], v[1])
     }
     fn resistor_volts(&self, v: &[f64], _rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![0.0, op.id_a * v[1]]

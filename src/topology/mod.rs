@@ -21,11 +21,13 @@ mod drain_feedback;
 mod fixed_bias;
 mod follower_divider;
 mod follower_self;
+mod path;
 mod self_bias;
 mod self_bias_swamped;
 mod zero_bias;
 
 pub use common::{Caps, Rails, SmallSignal};
+pub use path::{SignalPath, Terminal};
 
 use crate::device::{Family, Region, SquareLaw};
 use crate::netlist::Netlist;
@@ -368,6 +370,9 @@ pub trait Topology: Sync {
     fn gain(&self, values: &[f64], ctx: &common::SignalContext) -> f64 {
         self.small_signal(values, ctx).av
     }
+    /// The mid-band signal path: which terminals carry the signal and the
+    /// resistances it sees (for output swing, noise and distortion).
+    fn signal_path(&self, values: &[f64]) -> SignalPath;
     /// DC voltage across each resistor at the operating point, volts, in
     /// [`Topology::parts`] order (for dissipation).
     fn resistor_volts(&self, values: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64>;

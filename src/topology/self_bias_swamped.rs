@@ -5,7 +5,7 @@ use super::common::{
     cs_degenerated, cs_degenerated_gain, CapRole, Frame, NetlistInput, Rails, SignalContext,
     SmallSignal,
 };
-use super::{BiasNetwork, Gate, OpPoint, Role, Topology};
+use super::{BiasNetwork, Gate, OpPoint, Role, SignalPath, Topology};
 use crate::device::Family;
 use crate::netlist::{Netlist, GROUND};
 
@@ -42,6 +42,9 @@ impl Topology for SelfBiasSwamped {
     }
     fn gain(&self, v: &[f64], c: &SignalContext) -> f64 {
         cs_degenerated_gain(v[2], v[1], c)
+    }
+    fn signal_path(&self, v: &[f64]) -> SignalPath {
+        SignalPath::common_source(v[0], v[1], v[2])
     }
     fn resistor_volts(&self, v: &[f64], _rails: &Rails, op: &OpPoint) -> Vec<f64> {
         vec![0.0, op.id_a * v[1], op.id_a * v[2]]

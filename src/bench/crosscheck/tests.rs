@@ -153,6 +153,9 @@ impl Topology for Faulty {
         }
         ss
     }
+    fn signal_path(&self, values: &[f64]) -> crate::topology::SignalPath {
+        by_id("self-bias").unwrap().signal_path(values)
+    }
     fn resistor_volts(&self, values: &[f64], rails: &Rails, op: &OpPoint) -> Vec<f64> {
         by_id("self-bias")
             .unwrap()

@@ -9,6 +9,9 @@
 //!
 //! This module must not know about searching, ranking or printing.
 
+pub mod distortion;
 pub mod network;
+pub mod noise;
+pub mod swing;
 
 pub use network::Stage;

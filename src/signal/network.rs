@@ -196,8 +196,9 @@ fn solve_fixed(y: &[[f64; 3]; 3], b: &[f64; 3], fixed: &[Option<f64>; 3]) -> Nod
         for r in (c + 1)..n {
             let f = a[r][c] / a[c][c];
             if f != 0.0 {
-                for k in c..4 {
-                    a[r][k] -= f * a[c][k];
+                let (upper, lower) = a.split_at_mut(r);
+                for (x, y) in lower[0][c..].iter_mut().zip(&upper[c][c..]) {
+                    *x -= f * y;
                 }
             }
         }

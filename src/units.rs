@@ -9,8 +9,13 @@
 //! `f` 1e-15, `p` 1e-12, `n` 1e-9, `u`/`µ` 1e-6, `m` 1e-3 (milli), `k`/`K` 1e3,
 //! `M` 1e6 (mega), `meg`/`MEG`/`Meg` 1e6, `G` 1e9, `T` 1e12. The suffix may
 //! stand in place of the decimal point (`4k7` = 4700, `2M2` = 2.2e6,
-//! `4R7` = 4.7 with `R` as the unit-less marker). A trailing unit letter
-//! (`Ω`, `ohm`, `V`, `A`, `F`, `Hz`, `W`, `S`) is accepted and ignored.
+//! `4R7` = 4.7 with `R` as the unit-less marker). A trailing unit is
+//! checked against the quantity ([`parse_quantity`]): `47k`, `47kΩ` and
+//! `47kohm` are resistances, `47kV` is not; [`parse_value`], for text whose
+//! quantity is unknown, accepts any of the units.
+//!
+//! An exponent and a scale letter together (`1e3k`) are refused: the reader
+//! cannot tell whether the writer meant 1e3 or 1e6.
 //!
 //! This module must not know about circuits: it only turns text into numbers
 //! and numbers into text.
@@ -24,15 +29,109 @@ pub struct ParseValueError {
     pub text: String,
     /// Why it was refused.
     pub reason: String,
+    /// True when the number reads but its unit belongs to another quantity
+    /// (`47kV` for a resistance): `reason` is then the whole rule, e.g.
+    /// "a resistance takes Ω or no unit".
+    pub wrong_unit: bool,
 }
 
 impl fmt::Display for ParseValueError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        if self.wrong_unit {
+            return write!(f, "`{}`: {}", self.text, self.reason);
+        }
         write!(
             f,
             "`{}` is not a value in engineering notation ({}); expected e.g. 4k7, 2.2M, 100n, 10meg or 1.5e3",
             self.text, self.reason
         )
+    }
+}
+
+/// What a value measures, which decides the unit that may follow it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Quantity {
+    /// Ohms: `Ω`, `ohm`, `ohms`; `R` may stand for the decimal point.
+    Resistance,
+    /// Volts: `V`.
+    Voltage,
+    /// Amps: `A`.
+    Current,
+    /// Watts: `W`.
+    Power,
+    /// Hertz: `Hz`.
+    Frequency,
+    /// Farads: `F`.
+    Capacitance,
+    /// Siemens: `S`.
+    Conductance,
+    /// A transconductance parameter, A/V²: `A/V²`, `A/V^2`, `A/V2`.
+    TransconductanceParameter,
+    /// Per volt (channel-length modulation): `/V`, `1/V`.
+    PerVolt,
+    /// A ratio of like quantities (a gain, V/V): `V/V` or no unit.
+    Gain,
+    /// A plain number (tolerances, divider ratios): no unit.
+    Ratio,
+    /// Decibels: `dB`.
+    Decibels,
+}
+
+/// Every quantity.
+const ALL: [Quantity; 12] = [
+    Quantity::Resistance,
+    Quantity::Voltage,
+    Quantity::Current,
+    Quantity::Power,
+    Quantity::Frequency,
+    Quantity::Capacitance,
+    Quantity::Conductance,
+    Quantity::TransconductanceParameter,
+    Quantity::PerVolt,
+    Quantity::Gain,
+    Quantity::Ratio,
+    Quantity::Decibels,
+];
+
+impl Quantity {
+    /// The unit words that may follow a value of this quantity, longest
+    /// first (so `ohms` is tried before `ohm`, `A/V^2` before `A`).
+    pub fn units(self) -> &'static [&'static str] {
+        match self {
+            Quantity::Resistance => &["ohms", "Ohms", "ohm", "Ohm", "Ω"],
+            Quantity::Voltage => &["V"],
+            Quantity::Current => &["A"],
+            Quantity::Power => &["W"],
+            Quantity::Frequency => &["Hz"],
+            Quantity::Capacitance => &["F"],
+            Quantity::Conductance => &["S"],
+            Quantity::TransconductanceParameter => &["A/V^2", "A/V²", "A/V2"],
+            Quantity::PerVolt => &["1/V", "/V"],
+            Quantity::Gain => &["V/V"],
+            Quantity::Ratio => &[],
+            Quantity::Decibels => &["dB"],
+        }
+    }
+
+    /// The rule a value with a foreign unit breaks, for messages:
+    /// "a resistance takes Ω or no unit".
+    pub fn unit_rule(self) -> &'static str {
+        match self {
+            Quantity::Resistance => "a resistance takes Ω (or ohm) or no unit",
+            Quantity::Voltage => "a voltage takes V or no unit",
+            Quantity::Current => "a current takes A or no unit",
+            Quantity::Power => "a power takes W or no unit",
+            Quantity::Frequency => "a frequency takes Hz or no unit",
+            Quantity::Capacitance => "a capacitance takes F or no unit",
+            Quantity::Conductance => "a conductance takes S or no unit",
+            Quantity::TransconductanceParameter => {
+                "a transconductance parameter takes A/V^2 (A/V²) or no unit"
+            }
+            Quantity::PerVolt => "a channel-length modulation takes 1/V or no unit",
+            Quantity::Gain => "a gain takes V/V or no unit",
+            Quantity::Ratio => "a ratio takes no unit",
+            Quantity::Decibels => "a gain in decibels takes dB or no unit",
+        }
     }
 }
 
@@ -55,23 +154,9 @@ fn prefix_multiplier(c: char) -> Option<f64> {
     })
 }
 
-/// Unit words that may follow a value and carry no scale.
-const UNIT_WORDS: [&str; 10] = ["ohms", "ohm", "Ω", "Hz", "V", "A", "F", "W", "S", "s"];
-
-fn strip_unit(s: &str) -> &str {
-    for w in UNIT_WORDS {
-        if let Some(rest) = s.strip_suffix(w) {
-            // Do not strip the only character: "F" alone is not a number anyway,
-            // and "1S" must still parse as one siemens.
-            if !rest.is_empty() {
-                return rest;
-            }
-        }
-    }
-    s
-}
-
-/// Parse engineering notation into a number in SI base units.
+/// Parse engineering notation into a number in SI base units, whatever
+/// unit follows it (for text whose quantity is unknown; prefer
+/// [`parse_quantity`]).
 ///
 /// ```
 /// use gatewright::units::parse_value;
@@ -80,11 +165,34 @@ fn strip_unit(s: &str) -> &str {
 /// assert_eq!(parse_value("10meg").unwrap(), 1.0e7);
 /// assert!((parse_value("15m").unwrap() - 0.015).abs() < 1e-15);
 /// assert!(parse_value("4k7k").is_err());
+/// assert!(parse_value("1e3k").is_err());
 /// ```
 pub fn parse_value(text: &str) -> Result<f64, ParseValueError> {
+    parse_with(text, None)
+}
+
+/// Parse engineering notation for a value of quantity `q`: a unit, when
+/// present, must be one of `q`'s ([`Quantity::units`]); a unit of another
+/// quantity is refused with [`Quantity::unit_rule`] as the reason.
+///
+/// ```
+/// use gatewright::units::{parse_quantity, Quantity};
+/// assert_eq!(parse_quantity("47k", Quantity::Resistance).unwrap(), 47e3);
+/// assert_eq!(parse_quantity("47kΩ", Quantity::Resistance).unwrap(), 47e3);
+/// let e = parse_quantity("47kV", Quantity::Resistance).unwrap_err();
+/// assert_eq!(e.reason, "a resistance takes Ω (or ohm) or no unit");
+/// assert!((parse_quantity("5mA", Quantity::Current).unwrap() - 5e-3).abs() < 1e-18);
+/// assert!(parse_quantity("5mV", Quantity::Current).is_err());
+/// ```
+pub fn parse_quantity(text: &str, q: Quantity) -> Result<f64, ParseValueError> {
+    parse_with(text, Some(q))
+}
+
+fn parse_with(text: &str, q: Option<Quantity>) -> Result<f64, ParseValueError> {
     let err = |reason: &str| ParseValueError {
         text: text.to_string(),
         reason: reason.to_string(),
+        wrong_unit: false,
     };
     let s = text.trim();
     if s.is_empty() {
@@ -94,54 +202,105 @@ pub fn parse_value(text: &str) -> Result<f64, ParseValueError> {
         Some(rest) => (-1.0, rest),
         None => (1.0, s.strip_prefix('+').unwrap_or(s)),
     };
+    // The units this value may carry; a unit is stripped only where a
+    // number stands before it ("F" alone is no number, "1S" is 1 siemens).
+    let own: Vec<&str> = match q {
+        Some(q) => q.units().to_vec(),
+        None => {
+            let mut all: Vec<&str> = ALL.iter().flat_map(|q| q.units().iter().copied()).collect();
+            all.sort_by_key(|w| std::cmp::Reverse(w.len()));
+            all
+        }
+    };
+    let stripped = own
+        .iter()
+        .find_map(|w| body.strip_suffix(w).filter(|rest| !rest.is_empty()));
+    let number = stripped.unwrap_or(body);
+    let r_marks = q.is_none_or(|q| q == Quantity::Resistance);
+    match scaled(number, r_marks) {
+        Ok(v) => finish(sign * v, &err),
+        Err(reason) => {
+            // A number followed by another quantity's unit: say which unit
+            // this field takes rather than blame the letters.
+            if let (Some(q), None) = (q, stripped) {
+                let foreign = ALL
+                    .iter()
+                    .flat_map(|o| o.units().iter().copied())
+                    .chain(["R", "r"])
+                    .filter_map(|w| body.strip_suffix(w).filter(|rest| !rest.is_empty()))
+                    .any(|rest| scaled(rest, false).is_ok());
+                if foreign {
+                    return Err(ParseValueError {
+                        text: text.to_string(),
+                        reason: q.unit_rule().to_string(),
+                        wrong_unit: true,
+                    });
+                }
+            }
+            Err(err(&reason))
+        }
+    }
+}
+
+/// A magnitude with at most one scale letter (or `meg`), which may stand
+/// for the decimal point; `r_marks`: `R` is a unit-less decimal marker
+/// (resistances only).
+fn scaled(body: &str, r_marks: bool) -> Result<f64, String> {
+    let exponent_too = |head: &str| head.contains(['e', 'E']);
+    const BOTH: &str = "an exponent and a scale letter together; write one of them (1e6 or 1M)";
     // `meg` in any case is mega (SPICE habit); check before the one-letter prefixes.
     let lower = body.to_ascii_lowercase();
-    let body_nounit = strip_unit(body);
-    let lower_nounit = body_nounit.to_ascii_lowercase();
-    for candidate in [lower_nounit.as_str(), lower.as_str()] {
-        if let Some(num) = candidate.strip_suffix("meg") {
-            let v = parse_plain(num).ok_or_else(|| err("the part before `meg` is not a number"))?;
-            return finish(sign * v * 1e6, &err);
+    if let Some(num) = lower.strip_suffix("meg") {
+        if exponent_too(num) {
+            return Err(BOTH.to_string());
         }
-        if let Some(pos) = candidate.find("meg") {
-            // letter-as-decimal-point: 1meg5 = 1.5e6
-            let (a, b) = (&candidate[..pos], &candidate[pos + 3..]);
-            if let Some(v) = join_digits(a, b) {
-                return finish(sign * v * 1e6, &err);
-            }
-            return Err(err("misplaced `meg`"));
-        }
+        let v = parse_plain(num).ok_or("the part before `meg` is not a number")?;
+        return Ok(v * 1e6);
     }
-    if let Some(v) = parse_plain(body_nounit) {
-        return finish(sign * v, &err);
+    if let Some(pos) = lower.find("meg") {
+        // letter-as-decimal-point: 1meg5 = 1.5e6
+        let (a, b) = (&lower[..pos], &lower[pos + 3..]);
+        return join_digits(a, b)
+            .map(|v| v * 1e6)
+            .ok_or_else(|| "misplaced `meg`".to_string());
+    }
+    if let Some(v) = parse_plain(body) {
+        return Ok(v);
     }
     // Find the single prefix letter.
-    let letters: Vec<(usize, char)> = body_nounit
+    let letters: Vec<(usize, char)> = body
         .char_indices()
         .filter(|(_, c)| c.is_alphabetic() && !matches!(c, 'e' | 'E'))
         .collect();
     let [(pos, c)] = letters.as_slice() else {
         // Words such as `nan`, `inf` or `four` carry no digit at all: they
         // are not numbers, whatever letters they happen to contain.
-        let has_digit = body_nounit.chars().any(|c| c.is_ascii_digit());
-        return Err(err(if !has_digit {
+        let has_digit = body.chars().any(|c| c.is_ascii_digit());
+        return Err(if !has_digit {
             "no digits"
         } else if letters.is_empty() {
             "not a number"
         } else {
             "more than one scale letter"
-        }));
+        }
+        .to_string());
     };
-    let mult = prefix_multiplier(*c).ok_or_else(|| err(&format!("unknown scale letter `{c}`")))?;
-    let head = &body_nounit[..*pos];
-    let tail = &body_nounit[pos + c.len_utf8()..];
+    let mult = match prefix_multiplier(*c) {
+        Some(_) if matches!(c, 'R' | 'r') && !r_marks => None,
+        m => m,
+    }
+    .ok_or_else(|| format!("unknown scale letter `{c}`"))?;
+    let head = &body[..*pos];
+    let tail = &body[pos + c.len_utf8()..];
+    if exponent_too(head) {
+        return Err(BOTH.to_string());
+    }
     let v = if tail.is_empty() {
-        parse_plain(head).ok_or_else(|| err("the part before the scale letter is not a number"))?
+        parse_plain(head).ok_or("the part before the scale letter is not a number")?
     } else {
-        join_digits(head, tail)
-            .ok_or_else(|| err("digits expected on both sides of the scale letter"))?
+        join_digits(head, tail).ok_or("digits expected on both sides of the scale letter")?
     };
-    finish(sign * v * mult, &err)
+    Ok(v * mult)
 }
 
 fn finish(v: f64, err: &dyn Fn(&str) -> ParseValueError) -> Result<f64, ParseValueError> {
@@ -349,6 +508,67 @@ mod tests {
         }
         assert_eq!(round_sig(1e-310, 3), 1e-310);
         assert_eq!(round_sig(1234.5, 3), 1230.0);
+    }
+
+    // Each field takes its own unit or none; another quantity's unit is a
+    // slip (47 kV is no load resistance), refused with the rule.
+    #[test]
+    fn a_unit_must_belong_to_the_quantity() {
+        use Quantity::*;
+        let ok = [
+            ("47k", Resistance, 47e3),
+            ("47kΩ", Resistance, 47e3),
+            ("3.3kohm", Resistance, 3.3e3),
+            ("470R", Resistance, 470.0),
+            ("4R7", Resistance, 4.7),
+            ("10megohm", Resistance, 1e7),
+            ("5mA", Current, 5e-3),
+            ("-2.5V", Voltage, -2.5),
+            ("250mW", Power, 0.25),
+            ("20Hz", Frequency, 20.0),
+            ("2mA/V^2", TransconductanceParameter, 2e-3),
+            ("0.02/V", PerVolt, 0.02),
+            ("5V/V", Gain, 5.0),
+            ("14dB", Decibels, 14.0),
+            ("100n", Capacitance, 1e-7),
+            ("0.05", Ratio, 0.05),
+        ];
+        for (text, q, want) in ok {
+            let got = parse_quantity(text, q).unwrap();
+            assert!(((got - want) / want).abs() < 1e-12, "{text}: {got}");
+        }
+        let bad = [
+            ("47kV", Resistance),
+            ("5mV", Current),
+            ("5mA", Voltage),
+            ("1kHz", Resistance),
+            ("470R", Voltage),
+            ("3W", Current),
+            ("10uF", Resistance),
+            ("2kΩ", Ratio),
+        ];
+        for (text, q) in bad {
+            let e = parse_quantity(text, q).unwrap_err();
+            assert!(e.wrong_unit, "{text}: {e}");
+            assert_eq!(e.reason, q.unit_rule(), "{text}");
+        }
+        // Not numbers at all stay "not a number" errors, not unit errors;
+        // `R` as the decimal point is resistance notation only.
+        assert!(!parse_quantity("abcV", Resistance).unwrap_err().wrong_unit);
+        assert!(parse_quantity("4R7", Voltage).is_err());
+    }
+
+    // "1e3k" could mean 1e3 (the k a slip) or 1e6: refused either way.
+    #[test]
+    fn an_exponent_with_a_scale_letter_is_refused() {
+        for text in ["1e3k", "1E3k", "2.2e-3m", "1e3meg", "1e3kΩ"] {
+            let e = parse_value(text).unwrap_err();
+            assert!(
+                e.reason.contains("exponent and a scale letter"),
+                "{text}: {e}"
+            );
+        }
+        assert_eq!(parse_value("1e3").unwrap(), 1e3);
     }
 
     #[test]

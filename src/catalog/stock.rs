@@ -22,7 +22,7 @@ use serde::Deserialize;
 use toml::Spanned;
 
 use super::{Catalog, CatalogError, Part, RELATIVE_SLACK};
-use crate::units::{format_value, parse_value};
+use crate::units::{format_value, parse_quantity, Quantity};
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -76,25 +76,28 @@ impl Reader<'_> {
         }
     }
 
-    /// A number or engineering text, finite and greater than 0, in `unit`.
+    /// A number or engineering text of quantity `q`, finite and greater
+    /// than 0, in `unit`.
     fn positive(
         &self,
         field: &str,
         raw: &Spanned<toml::Value>,
+        q: Quantity,
         unit: &str,
     ) -> Result<f64, CatalogError> {
         let v = match raw.get_ref() {
             toml::Value::Float(f) => *f,
             toml::Value::Integer(i) => *i as f64,
-            toml::Value::String(s) => parse_value(s).map_err(|e| {
-                self.error(
-                    field,
-                    raw,
-                    &format!(
+            toml::Value::String(s) => parse_quantity(s, q).map_err(|e| {
+                let rule = if e.wrong_unit {
+                    e.reason
+                } else {
+                    format!(
                         "is not engineering notation ({}); write e.g. \"4k7\", \"2.2M\" or 470",
                         e.reason
-                    ),
-                )
+                    )
+                };
+                self.error(field, raw, &rule)
             })?,
             _ => {
                 return Err(self.error(
@@ -167,7 +170,7 @@ pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
     let default_power = raw
         .power
         .as_ref()
-        .map(|p| r.positive("power", p, "watts"))
+        .map(|p| r.positive("power", p, Quantity::Power, "watts"))
         .transpose()?;
 
     let raw_parts = raw.part.unwrap_or_default();
@@ -185,7 +188,12 @@ pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
         Vec::with_capacity(raw_parts.len());
     for (i, p) in raw_parts.iter().enumerate() {
         let n = i + 1;
-        let ohms = r.positive(&format!("part[{n}].value"), &p.value, "ohms")?;
+        let ohms = r.positive(
+            &format!("part[{n}].value"),
+            &p.value,
+            Quantity::Resistance,
+            "ohms",
+        )?;
         let tolerance = match &p.tolerance {
             Some(t) => r.tolerance(&format!("part[{n}].tolerance"), t)?,
             None => default_tol.ok_or_else(|| CatalogError::Invalid {
@@ -197,7 +205,9 @@ pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
             })?,
         };
         let power_w = match &p.power {
-            Some(w) => Some(r.positive(&format!("part[{n}].power"), w, "watts")?),
+            Some(w) => {
+                Some(r.positive(&format!("part[{n}].power"), w, Quantity::Power, "watts")?)
+            }
             None => default_power,
         };
         let part = Part {

@@ -10,6 +10,7 @@ use crate::device::{Corner, Family};
 use crate::search::Shelf;
 use crate::spec::{CatalogChoice, ValidSpec};
 use crate::topology::{NetlistInput, Topology};
+use crate::units::Quantity;
 
 /// A specification with its resistor catalog loaded.
 pub(crate) struct Loaded {
@@ -95,7 +96,8 @@ pub(crate) fn values(t: &dyn Topology, text: &str, family: Family) -> Result<Vec
             bail!("`--values`: `{item}` is not DESIGNATOR=VALUE (e.g. RD=6.8k)");
         };
         let name = name.trim();
-        let v = crate::units::parse_value(val).with_context(|| format!("`--values` {name}"))?;
+        let v = crate::units::parse_quantity(val, Quantity::Resistance)
+            .with_context(|| format!("`--values` {name}"))?;
         items.push((name.to_string(), v, val.trim().to_string()));
     }
     place(t, &items, family, "`--values`")
@@ -181,13 +183,19 @@ pub(crate) fn topology(id: &str, field: &str) -> Result<&'static dyn Topology> {
     })
 }
 
-/// `MIN..MAX` in engineering notation, either order.
+/// `MIN..MAX` resistances in engineering notation, either order. Exactly
+/// two dots part the ends: `100k...1M` is refused, not read as 100k..0.1M.
 pub(crate) fn parse_span(text: &str) -> Result<(f64, f64)> {
+    let shape =
+        || format!("`{text}` is not MIN..MAX with two dots between the ends (e.g. 100k..1M)");
     let Some((a, b)) = text.split_once("..") else {
-        bail!("`{text}` is not MIN..MAX (e.g. 100k..1M)");
+        bail!(shape());
     };
-    let a = crate::units::parse_value(a)?;
-    let b = crate::units::parse_value(b)?;
+    if a.trim().is_empty() || b.trim().is_empty() || b.starts_with('.') || b.contains("..") {
+        bail!(shape());
+    }
+    let a = crate::units::parse_quantity(a, Quantity::Resistance)?;
+    let b = crate::units::parse_quantity(b, Quantity::Resistance)?;
     if a <= 0.0 || b <= 0.0 {
         bail!("`{text}`: both ends must be greater than 0");
     }

@@ -22,6 +22,7 @@ use crate::catalog::snap;
 use crate::report;
 use crate::search::{self, Options};
 use crate::spec::{R_MAX_OHM, R_MIN_OHM};
+use crate::units::Quantity;
 
 /// Smallest divider ratio `snap --ratio` takes, and 1 minus the largest
 /// (dimensionless): a 1e-6 tap is far below what 0.1 % parts resolve
@@ -106,6 +107,9 @@ fn run(cli: Cli) -> Result<ExitCode> {
 }
 
 fn snap_cmd(a: args::SnapArgs) -> Result<ExitCode> {
+    if matches!(a.format, Format::Csv | Format::Spice) {
+        bail!("`--format` for `snap` is table or json");
+    }
     let series = crate::catalog::ESeries::from_name(&a.series).with_context(|| {
         format!(
             "`--series` = {}: expected one of E6, E12, E24, E48, E96, E192",
@@ -113,7 +117,8 @@ fn snap_cmd(a: args::SnapArgs) -> Result<ExitCode> {
         )
     })?;
     if let Some(ratio_text) = &a.ratio {
-        let ratio = crate::units::parse_value(ratio_text).context("`--ratio`")?;
+        let ratio =
+            crate::units::parse_quantity(ratio_text, Quantity::Ratio).context("`--ratio`")?;
         if !(RATIO_MIN..=1.0 - RATIO_MIN).contains(&ratio) {
             bail!(
                 "`--ratio` = {ratio_text}: must lie between 1e-6 and 1 − 1e-6 (R2 over R1 + R2; \
@@ -139,7 +144,8 @@ fn snap_cmd(a: args::SnapArgs) -> Result<ExitCode> {
     }
     let mut rows = Vec::new();
     for text in &a.values {
-        let v = crate::units::parse_value(text).with_context(|| format!("VALUE `{text}`"))?;
+        let v = crate::units::parse_quantity(text, Quantity::Resistance)
+            .with_context(|| format!("VALUE `{text}`"))?;
         if v <= 0.0 {
             bail!("VALUE `{text}` = {v}: a resistance must be greater than 0");
         }
@@ -217,6 +223,9 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     let cautions = crate::bench::view::spec_cautions(&full);
     let report_view = summary::design_report(&full, &shelf.name, &outcome, cautions);
     if let Some(n) = a.pick {
+        if a.format != Format::Table {
+            bail!("`--format` with `--pick` is table (the bench report); use `--out DIR` for the netlist, BOM and pictures");
+        }
         let n = usize::from(n);
         return bench::run(&full, &report_view, &outcome, n, a.out.as_deref(), a.force);
     }

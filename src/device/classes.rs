@@ -5,9 +5,10 @@
 //! parameter. The built-in file is compiled in with `include_str!`; [`parse`]
 //! reads any text of the same shape. No file I/O here.
 
+use super::input::quantity;
 use super::input::{range_from_table, DeviceInput};
 use super::{Device, Family, ParamRange};
-use crate::units::parse_value;
+use crate::units::{parse_quantity, parse_value, Quantity};
 use serde::Deserialize;
 use std::fmt;
 
@@ -92,10 +93,15 @@ enum RawParam {
 }
 
 impl RawNum {
-    fn value(&self) -> Result<f64, String> {
+    /// The number, its text read as quantity `q` (the spec key's).
+    fn value(&self, q: Option<Quantity>) -> Result<f64, String> {
         let v = match self {
             RawNum::Number(v) => *v,
-            RawNum::Text(t) => parse_value(t).map_err(|e| e.to_string())?,
+            RawNum::Text(t) => match q {
+                Some(q) => parse_quantity(t, q),
+                None => parse_value(t),
+            }
+            .map_err(|e| e.to_string())?,
         };
         if v.is_finite() {
             Ok(v)
@@ -106,16 +112,16 @@ impl RawNum {
 }
 
 impl RawParam {
-    fn range(&self) -> Result<ParamRange, String> {
+    fn range(&self, q: Option<Quantity>) -> Result<ParamRange, String> {
         match self {
-            RawParam::One(n) => Ok(ParamRange::exact(n.value()?)),
+            RawParam::One(n) => Ok(ParamRange::exact(n.value(q)?)),
             RawParam::Pair(v) => match v.as_slice() {
-                [a, b] => Ok(ParamRange::between(a.value()?, b.value()?)),
+                [a, b] => Ok(ParamRange::between(a.value(q)?, b.value(q)?)),
                 _ => Err("a range must have exactly two elements".to_string()),
             },
             RawParam::Table { min, typ, max } => {
-                let typ = typ.as_ref().map(RawNum::value).transpose()?;
-                range_from_table(min.value()?, typ, max.value()?)
+                let typ = typ.as_ref().map(|t| t.value(q)).transpose()?;
+                range_from_table(min.value(q)?, typ, max.value(q)?)
             }
         }
     }
@@ -132,13 +138,13 @@ impl RawClass {
             .ok_or_else(|| bad("family", format!("unknown family `{}`", self.family)))?;
         let range = |name: &str, p: &Option<RawParam>| {
             p.as_ref()
-                .map(RawParam::range)
+                .map(|r| r.range(quantity(name)))
                 .transpose()
                 .map_err(|r| bad(name, r))
         };
         let num = |name: &str, p: &Option<RawNum>| {
             p.as_ref()
-                .map(RawNum::value)
+                .map(|n| n.value(quantity(name)))
                 .transpose()
                 .map_err(|r| bad(name, r))
         };

@@ -7,7 +7,7 @@
 //! the parameter and the rule, and the caller adds where it came from.
 
 use super::{Device, Family, ParamRange, Params, Strength};
-use crate::units::format_value;
+use crate::units::{format_value, Quantity};
 use std::fmt;
 
 /// Datasheet numbers for one device, before checking. Every field is
@@ -67,6 +67,19 @@ fn err(param: &'static str, rule: impl Into<String>) -> ParamError {
         param,
         rule: rule.into(),
     }
+}
+
+/// The quantity of a device parameter or rating (`idss` a current, `k`
+/// A/V², ...): the unit its text may carry. `None` for an unknown name.
+pub fn quantity(param: &str) -> Option<Quantity> {
+    Some(match param {
+        "idss" | "id_on" => Quantity::Current,
+        "vgs_off" | "vth" | "vgs_on" | "vgs_max" | "vds_max" => Quantity::Voltage,
+        "k" => Quantity::TransconductanceParameter,
+        "lambda" => Quantity::PerVolt,
+        "pd_max" => Quantity::Power,
+        _ => return None,
+    })
 }
 
 /// Build a range from `min`, optional `typ` and `max` as written in a

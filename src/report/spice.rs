@@ -181,7 +181,7 @@ fn node_name(net: &Netlist, n: Node) -> String {
 
 /// One line of free text, safe for a title or a comment card.
 fn one_line(text: &str) -> String {
-    text.replace(['\r', '\n'], " ")
+    super::printable(&text.replace(['\r', '\n'], " ")).into_owned()
 }
 
 /// The `.model` card of a FET at its square law.
@@ -228,7 +228,7 @@ pub fn netlist_to_spice(net: &Netlist, title: &str, comments: &[String]) -> Stri
     );
     for c in comments {
         for line in c.lines() {
-            let _ = writeln!(out, "* {line}");
+            let _ = writeln!(out, "* {}", super::printable(line));
         }
     }
     let mut models = Vec::new();

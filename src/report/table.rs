@@ -163,8 +163,8 @@ pub fn design(r: &DesignReport) -> String {
     }
     out.push_str(&format!(
         "{} — {} values, {} check\n",
-        r.name,
-        r.series,
+        super::printable(&r.name),
+        super::printable(&r.series),
         if r.mode == "nominal" {
             "nominal"
         } else {

@@ -157,7 +157,10 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
     let mut out = String::new();
     let title = format!(
         "{} — design #{}: {} ({} values)",
-        v.name, d.rank, d.topology, v.series
+        super::printable(&v.name),
+        d.rank,
+        d.topology,
+        super::printable(&v.series)
     );
     out.push_str(&title);
     out.push('\n');

@@ -167,8 +167,8 @@ fn range(s: &Section, key: &str, bound: Bound) -> Result<Option<ParamRange>, Spe
                     &format!("a range must have exactly two elements; give {RANGE_SHAPES}"),
                 ));
             };
-            let a = number_of(a).map_err(|r| s.invalid(e, &r))?;
-            let b = number_of(b).map_err(|r| s.invalid(e, &r))?;
+            let a = number_of(a, s.quantity(key)).map_err(|r| s.invalid(e, &r))?;
+            let b = number_of(b, s.quantity(key)).map_err(|r| s.invalid(e, &r))?;
             ParamRange::between(a, b)
         }
         Node::Table(entries) => {
@@ -189,7 +189,9 @@ fn range(s: &Section, key: &str, bound: Bound) -> Result<Option<ParamRange>, Spe
                 &format!("must be {RANGE_SHAPES}, not {}", e.value.kind()),
             ))
         }
-        scalar => ParamRange::exact(number_of(scalar).map_err(|r| s.invalid(e, &r))?),
+        scalar => {
+            ParamRange::exact(number_of(scalar, s.quantity(key)).map_err(|r| s.invalid(e, &r))?)
+        }
     };
     for v in [Some(r.min), r.typ, Some(r.max)].into_iter().flatten() {
         bound.check(v).map_err(|rule| s.invalid(e, rule))?;

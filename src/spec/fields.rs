@@ -3,8 +3,8 @@
 
 use super::error::SpecError;
 use super::raw::{Entry, Node};
-use super::validate::SECTIONS;
-use crate::units::parse_value;
+use super::validate::{QUANTITIES, SECTIONS};
+use crate::units::{parse_quantity, parse_value, Quantity};
 
 /// One table of the specification and where it sits.
 pub(crate) struct Section<'a> {
@@ -67,18 +67,37 @@ pub(crate) fn closest<'c>(word: &str, candidates: &[&'c str]) -> Option<&'c str>
         .map(|(_, c)| c)
 }
 
-/// A number from a TOML integer, float or engineering string, or the rule
-/// it breaks.
-pub(crate) fn number_of(node: &Node) -> Result<f64, String> {
+/// The quantity of the numeric key at dotted path `field` (an inline range
+/// table's `min`, `typ` and `max` take their parameter's), `None` for a key
+/// the table does not list.
+pub(crate) fn quantity_of(field: &str) -> Option<Quantity> {
+    let find = |path: &str| match path.strip_prefix("device.") {
+        Some(param) => crate::device::input::quantity(param),
+        None => QUANTITIES.iter().find(|(p, _)| *p == path).map(|(_, q)| *q),
+    };
+    find(field).or_else(|| find(field.rsplit_once('.')?.0))
+}
+
+/// A number from a TOML integer, float or engineering string of quantity
+/// `q` (any unit when `None`), or the rule it breaks.
+pub(crate) fn number_of(node: &Node, q: Option<Quantity>) -> Result<f64, String> {
     let v = match node {
         Node::Int(i) => *i as f64,
         Node::Float(x) => *x,
-        Node::Str(s) => parse_value(s).map_err(|e| {
-            format!(
-                "not a number ({}); write a number or engineering notation such as \"4k7\", \
-                 \"2.2M\", \"100n\"",
+        Node::Str(s) => match q {
+            Some(q) => parse_quantity(s, q),
+            None => parse_value(s),
+        }
+        .map_err(|e| {
+            if e.wrong_unit {
                 e.reason
-            )
+            } else {
+                format!(
+                    "not a number ({}); write a number or engineering notation such as \"4k7\", \
+                     \"2.2M\", \"100n\"",
+                    e.reason
+                )
+            }
         })?,
         other => {
             return Err(format!(
@@ -115,6 +134,11 @@ impl<'a> Section<'a> {
         } else {
             format!("{}.{key}", self.path)
         }
+    }
+
+    /// The quantity of `key` in this table (see [`quantity_of`]).
+    pub fn quantity(&self, key: &str) -> Option<Quantity> {
+        quantity_of(&self.field(key))
     }
 
     /// The entry for `key`.
@@ -208,7 +232,7 @@ impl<'a> Section<'a> {
         let Some(e) = self.get(key) else {
             return Ok(None);
         };
-        let v = number_of(&e.value).map_err(|r| self.invalid(e, &r))?;
+        let v = number_of(&e.value, self.quantity(key)).map_err(|r| self.invalid(e, &r))?;
         Ok(Some(Num {
             v,
             field: self.field(key),
@@ -247,9 +271,42 @@ mod tests {
 
     #[test]
     fn numbers_from_every_spelling() {
-        assert_eq!(number_of(&Node::Int(3)), Ok(3.0));
-        assert_eq!(number_of(&Node::Str("4k7".into())), Ok(4700.0));
-        assert!(number_of(&Node::Float(f64::NAN)).is_err());
-        assert!(number_of(&Node::Bool(true)).is_err());
+        assert_eq!(number_of(&Node::Int(3), None), Ok(3.0));
+        assert_eq!(number_of(&Node::Str("4k7".into()), None), Ok(4700.0));
+        assert!(number_of(&Node::Float(f64::NAN), None).is_err());
+        assert!(number_of(&Node::Bool(true), None).is_err());
+        let r = Some(Quantity::Resistance);
+        assert_eq!(
+            number_of(&Node::Str("47kV".into()), r),
+            Err("a resistance takes Ω (or ohm) or no unit".to_string())
+        );
+    }
+
+    // Every numeric key the specification knows has a quantity, and every
+    // listed quantity is a known key (so a new key cannot be forgotten).
+    #[test]
+    fn every_numeric_key_has_a_quantity() {
+        for (path, _) in QUANTITIES {
+            let (table, key) = path.rsplit_once('.').unwrap();
+            let keys = SECTIONS.iter().find(|(p, _)| *p == table).unwrap().1;
+            assert!(keys.contains(&key), "{path}");
+        }
+        assert_eq!(quantity_of("device.idss.min"), Some(Quantity::Current));
+        assert_eq!(quantity_of("device.vgs_off"), Some(Quantity::Voltage));
+        let text = ["name", "polarity", "series", "family", "class"];
+        for (table, keys) in SECTIONS {
+            for key in keys.iter().filter(|k| !text.contains(k)) {
+                let path = if table.is_empty() {
+                    key.to_string()
+                } else {
+                    format!("{table}.{key}")
+                };
+                let is_table = SECTIONS.iter().any(|(p, _)| *p == path);
+                assert!(
+                    is_table || quantity_of(&path).is_some(),
+                    "{path} has no quantity"
+                );
+            }
+        }
     }
 }

@@ -8,7 +8,7 @@ use super::raw::{parse_document, Entry, Node};
 use super::{CatalogChoice, Limits, Parts, Polarity, Supply, Target, ValidSpec};
 use crate::catalog::ESeries;
 use crate::device::classes::DeviceClass;
-use crate::units::format_value;
+use crate::units::{format_value, Quantity};
 
 /// Largest gain magnitude accepted, V/V (80 dB): beyond what one discrete
 /// stage delivers, so a larger figure is a slip of the pen.
@@ -58,6 +58,29 @@ pub(crate) const SECTIONS: &[(&str, &[&str])] = &[
         ],
     ),
     ("parts", &["series", "tolerance", "range"]),
+];
+
+/// The quantity of each numeric key, by dotted path: the unit its text may
+/// carry (`load.rl = "47kV"` is refused). The device's keys take
+/// `device::input::quantity`; an inline range table
+/// (`device.idss = { min = .. }`) takes its parameter's.
+pub(crate) const QUANTITIES: &[(&str, Quantity)] = &[
+    ("target.gain", Quantity::Gain),
+    ("target.gain_db", Quantity::Decibels),
+    ("target.tolerance", Quantity::Ratio),
+    ("supply.vdd", Quantity::Voltage),
+    ("supply.vss", Quantity::Voltage),
+    ("supply.tolerance", Quantity::Ratio),
+    ("load.rl", Quantity::Resistance),
+    ("input.zin_min", Quantity::Resistance),
+    ("input.source_resistance", Quantity::Resistance),
+    ("headroom.vds_min", Quantity::Voltage),
+    ("limits.id_max", Quantity::Current),
+    ("limits.power_max", Quantity::Power),
+    ("limits.zout_max", Quantity::Resistance),
+    ("band.f_low", Quantity::Frequency),
+    ("parts.tolerance", Quantity::Ratio),
+    ("parts.range", Quantity::Resistance),
 ];
 
 const POLARITIES: [&str; 3] = ["inverting", "non-inverting", "any"];
@@ -346,7 +369,7 @@ fn range_pair(s: &Section, e: &Entry) -> Result<(f64, f64), SpecError> {
     };
     let mut vals = [0.0; 2];
     for (slot, item) in vals.iter_mut().zip([a, b]) {
-        let v = super::fields::number_of(item).map_err(|r| s.invalid(e, &r))?;
+        let v = super::fields::number_of(item, s.quantity(&e.key)).map_err(|r| s.invalid(e, &r))?;
         let n = Num {
             v,
             field: s.field(&e.key),

@@ -508,6 +508,30 @@ fn spec_cases() -> Vec<Case> {
             want: "in `DIR/spec.toml`: `target.gain` = 0 (line 3): must be greater than 0 (the gain is a magnitude; `polarity` sets the sign)",
         },
         Case {
+            what: "value: a voltage unit on a resistance",
+            spec: Spec::Text(with("rl = \"10k\"", "rl = \"47kV\"")),
+            files: &[],
+            want: "in `DIR/spec.toml`: `load.rl` = \"47kV\" (line 10): a resistance takes Ω (or ohm) or no unit",
+        },
+        Case {
+            what: "value: a voltage unit on a current",
+            spec: Spec::Text(with("idss = [\"2m\", \"6m\"]", "idss = [\"2m\", \"5mV\"]")),
+            files: &[],
+            want: "in `DIR/spec.toml`: `device.idss` = [\"2m\", \"5mV\"] (line 17): a current takes A or no unit",
+        },
+        Case {
+            what: "value: a unit in a range table",
+            spec: Spec::Text(with("idss = [\"2m\", \"6m\"]", "idss = { min = \"2mA\", max = \"6mW\" }")),
+            files: &[],
+            want: "in `DIR/spec.toml`: `device.idss.max` = \"6mW\" (line 17): a current takes A or no unit",
+        },
+        Case {
+            what: "value: exponent and scale letter",
+            spec: Spec::Text(with("zin_min = \"1M\"", "zin_min = \"1e3k\"")),
+            files: &[],
+            want: "in `DIR/spec.toml`: `input.zin_min` = \"1e3k\" (line 12): not a number (an exponent and a scale letter together; write one of them (1e6 or 1M)); write a number or engineering notation such as \"4k7\", \"2.2M\", \"100n\"",
+        },
+        Case {
             what: "value: garbage engineering text",
             spec: Spec::Text(with("rl = \"10k\"", "rl = \"10kk\"")),
             files: &[],
@@ -679,7 +703,37 @@ const ARG_CASES: &[(&str, &[&str], &str)] = &[
     (
         "snap: total not a span",
         &["snap", "--ratio", "0.5", "--total", "10k"],
-        "`--total`: `10k` is not MIN..MAX (e.g. 100k..1M)",
+        "`--total`: `10k` is not MIN..MAX with two dots between the ends (e.g. 100k..1M)",
+    ),
+    (
+        "snap: total with three dots",
+        &["snap", "--ratio", "0.5", "--total", "100k...1M"],
+        "`--total`: `100k...1M` is not MIN..MAX with two dots between the ends (e.g. 100k..1M)",
+    ),
+    (
+        "snap: total with a voltage",
+        &["snap", "--ratio", "0.5", "--total", "1k..10kV"],
+        "`--total`: `10kV`: a resistance takes Ω (or ohm) or no unit",
+    ),
+    (
+        "snap: a value with a current unit",
+        &["snap", "4k7A"],
+        "VALUE `4k7A`: `4k7A`: a resistance takes Ω (or ohm) or no unit",
+    ),
+    (
+        "snap: spice format",
+        &["snap", "4k7", "--format", "spice"],
+        "`--format` for `snap` is table or json",
+    ),
+    (
+        "snap: csv format",
+        &["snap", "--ratio", "0.5", "--total", "1k..10k", "--format", "csv"],
+        "`--format` for `snap` is table or json",
+    ),
+    (
+        "values: a voltage unit",
+        &["analyze", "spec.toml", "--topology", "self-bias", "--values", "RG=1M,RS=1kV,RD=3k"],
+        "`--values` RS: `1kV`: a resistance takes Ω (or ohm) or no unit",
     ),
     (
         "snap: total from zero",

@@ -285,3 +285,55 @@ fn a_closest_miss_is_a_working_stage_near_the_device_law_floor() {
     let r = rejection("cable-driver.toml", "common-gate", &dir);
     assert_eq!(r["binding"], "zin_min", "{r}");
 }
+
+// A `name` with ESC (a terminal command), NUL and line ends must reach no
+// output raw: the table, report.txt, the SPICE deck and the pictures show
+// visible escapes instead, and each SVG stays XML a renderer reads (XML
+// 1.0 admits no control character but tab and line ends).
+#[test]
+#[allow(clippy::unwrap_used)]
+fn control_characters_in_the_name_are_escaped() {
+    let dir = temp_dir("streams-control");
+    let example = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/examples/piezo-buffer.toml"
+    ))
+    .unwrap();
+    let start = example.find("name = ").unwrap();
+    let end = start + example[start..].find('\n').unwrap();
+    let spec = format!(
+        "{}name = \"buffer \\u001b[2J\\u0000 \\r\\nfake line\"{}",
+        &example[..start],
+        &example[end..]
+    );
+    std::fs::write(dir.join("spec.toml"), spec).unwrap();
+    let raw = |text: &str, allowed: &[char]| {
+        text.chars()
+            .find(|c| c.is_control() && !allowed.contains(c))
+            .map(|c| format!("{:?}", c))
+    };
+    let out = run(&["design", "spec.toml"], &dir);
+    assert_eq!(out.status.code(), Some(0));
+    let table = String::from_utf8(out.stdout).unwrap();
+    assert_eq!(raw(&table, &['\n']), None, "{table}");
+    assert!(
+        table.contains("buffer \\u{1b}[2J\\u{0} \\u{d}\\u{a}fake line"),
+        "{table}"
+    );
+    let out = run(
+        &["design", "spec.toml", "--pick", "1", "--out", "bench"],
+        &dir,
+    );
+    assert_eq!(out.status.code(), Some(0), "{out:?}");
+    for file in ["report.txt", "design.cir"] {
+        let text = std::fs::read_to_string(dir.join("bench").join(file)).unwrap();
+        assert_eq!(raw(&text, &['\n']), None, "{file}: {text}");
+        assert!(text.contains("\\u{1b}"), "{file}");
+    }
+    for file in ["schematic.svg", "bias.svg", "response.svg"] {
+        let svg = std::fs::read_to_string(dir.join("bench").join(file)).unwrap();
+        assert_eq!(raw(&svg, &['\n', '\t', '\r']), None, "{file}");
+        assert!(crate::pictures::render(&svg, file) > 0, "{file}");
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}

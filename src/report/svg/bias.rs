@@ -206,7 +206,7 @@ fn draw(root: &DrawingArea<SVGBackend, Shift>, d: &BiasData, title: &str) -> Res
     let (plot, legend) = root.split_horizontally(PLOT_WIDTH);
     let y_top = d.y_max_a * 1e3;
     let mut chart = ChartBuilder::on(&plot)
-        .caption(title, ("sans-serif", 18))
+        .caption(crate::report::printable(title), ("sans-serif", 18))
         .margin(16)
         .x_label_area_size(44)
         .y_label_area_size(56)

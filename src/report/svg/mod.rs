@@ -39,6 +39,7 @@ pub(crate) fn colour(i: usize) -> (u8, u8, u8) {
 /// always gets valid SVG.
 pub(crate) fn fallback(width: u32, height: u32, title: &str, why: &str) -> String {
     use ::svg::node::element::{Rectangle, Text};
+    let title = super::printable(title);
     let doc = ::svg::Document::new()
         .set("width", width)
         .set("height", height)
@@ -50,7 +51,7 @@ pub(crate) fn fallback(width: u32, height: u32, title: &str, why: &str) -> Strin
                 .set("fill", "white"),
         )
         .add(
-            Text::new(title)
+            Text::new(title.as_ref())
                 .set("x", 20)
                 .set("y", 30)
                 .set("font-family", "sans-serif")

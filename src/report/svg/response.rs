@@ -98,7 +98,7 @@ fn draw(
     let y0 = (bottom.min(level) - 3.0).floor();
     let y1 = (top + 3.0).ceil().max(y0 + 6.0);
     let mut chart = ChartBuilder::on(root)
-        .caption(title, ("sans-serif", 18))
+        .caption(crate::report::printable(title), ("sans-serif", 18))
         .margin(18)
         .x_label_area_size(44)
         .y_label_area_size(56)

@@ -69,7 +69,13 @@ pub fn schematic_svg(
 pub fn netlist_svg(net: &Netlist, title: &str, subtitle: &str, sized_caps: &[&str]) -> String {
     let l = Layout::new(net);
     let mut c = Canvas::default();
-    c.text((20, 28), title, Anchor::Start, 16, true);
+    c.text(
+        (20, 28),
+        &crate::report::printable(title),
+        Anchor::Start,
+        16,
+        true,
+    );
     c.text((20, 48), subtitle, Anchor::Start, 12, false);
     let mut drops_done = vec![(0usize, 0usize); net.nodes.len()];
     let mut vdd_x: Vec<i32> = Vec::new();

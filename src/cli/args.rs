@@ -122,11 +122,12 @@ pub(crate) struct DesignArgs {
     #[arg(long, value_name = "N", value_parser = clap::value_parser!(u16).range(1..))]
     pub(crate) pick: Option<u16>,
     /// Folder for the picked design's files (report.txt, bom.csv,
-    /// design.cir, schematic.svg, bias.svg, response.svg); must not exist
-    /// unless `--force`.
+    /// design.cir, schematic.svg, bias.svg, response.svg), written all or
+    /// nothing; must not exist unless `--force`.
     #[arg(long, value_name = "DIR", requires = "pick")]
     pub(crate) out: Option<PathBuf>,
-    /// Replace the files in an existing `--out` folder.
+    /// Replace an existing `--out` folder whole (only one that holds
+    /// nothing but gatewright's files).
     #[arg(long, requires = "out")]
     pub(crate) force: bool,
 }

@@ -1,13 +1,15 @@
 //! Command-line interface: parse, dispatch, print. No engineering here.
 //!
 //! Exit codes: 0 = a design was found (or the command did its job),
-//! 1 = the search ran but no design is feasible, 2 = bad input or I/O.
+//! 1 = the search ran but no design is feasible, 2 = bad input or I/O,
+//! 130 = interrupted while writing `--out` (which was left as it was).
 //! The product goes to stdout; warnings and errors go to stderr. A closed
 //! pipe ends the program quietly.
 
 mod args;
 mod bench;
 mod load;
+mod out_dir;
 mod verify_cmd;
 
 use anyhow::{bail, Context, Result};
@@ -46,6 +48,10 @@ pub fn main() -> ExitCode {
                 return ExitCode::SUCCESS;
             }
             let _ = writeln!(std::io::stderr(), "error: {e:#}");
+            if e.chain().any(|c| c.is::<out_dir::Interrupted>()) {
+                // 128 + SIGINT, as a shell reports an interrupted command.
+                return ExitCode::from(130);
+            }
             ExitCode::from(2)
         }
     }

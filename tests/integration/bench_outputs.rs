@@ -87,11 +87,20 @@ fn stderr(o: &Output) -> String {
     String::from_utf8_lossy(&o.stderr).into_owned()
 }
 
-/// No temporary file left behind (they start with a dot).
-fn no_temps(dir: &Path) {
-    for e in std::fs::read_dir(dir).unwrap() {
+/// No temporary left behind: nothing hidden inside `dir` (when it
+/// exists) and no staging folder of `dir` in `parent`.
+fn no_temps(parent: &Path, dir: &Path) {
+    if dir.is_dir() {
+        for e in std::fs::read_dir(dir).unwrap() {
+            let name = e.unwrap().file_name().to_string_lossy().into_owned();
+            assert!(!name.starts_with('.'), "left behind: {name}");
+        }
+    }
+    let stem = dir.file_name().unwrap().to_string_lossy().into_owned();
+    let prefix = format!(".{stem}.");
+    for e in std::fs::read_dir(parent).unwrap() {
         let name = e.unwrap().file_name().to_string_lossy().into_owned();
-        assert!(!name.starts_with('.'), "left behind: {name}");
+        assert!(!name.starts_with(&prefix), "left behind: {name}");
     }
 }
 
@@ -123,7 +132,7 @@ fn check_files(name: &str, dir: &Path, sized_caps: bool) {
         let meta = std::fs::metadata(dir.join(f)).unwrap_or_else(|e| panic!("{name}: {f}: {e}"));
         assert!(meta.len() > 0, "{name}: {f} is empty");
     }
-    no_temps(dir);
+    no_temps(dir.parent().unwrap(), dir);
     let read = |f: &str| std::fs::read_to_string(dir.join(f)).unwrap();
     let bom = read("bom.csv");
     assert_eq!(
@@ -288,16 +297,18 @@ fn refuses_an_existing_folder_without_force() {
         std::fs::read_to_string(dir.join("notes.txt")).unwrap(),
         "mine"
     );
-    no_temps(&dir);
+    no_temps(dir.parent().unwrap(), &dir);
     let _ = std::fs::remove_dir_all(&dir);
 }
 
 #[test]
-fn force_replaces_the_files_and_keeps_others() {
+fn force_replaces_a_folder_of_gatewright_files_whole() {
     let dir = fresh_dir("force");
-    std::fs::create_dir_all(&dir).unwrap();
-    std::fs::write(dir.join("report.txt"), "stale").unwrap();
-    std::fs::write(dir.join("notes.txt"), "mine").unwrap();
+    let o = pick_out(&example("piezo-buffer"), &dir, &[]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    // A deck an earlier run wrote: replaced whole, it must go (no mix of
+    // two runs).
+    std::fs::write(dir.join("design3.cir"), "old deck").unwrap();
     let o = pick_out(&example("cable-driver"), &dir, &["--force"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let report = std::fs::read_to_string(dir.join("report.txt")).unwrap();
@@ -305,12 +316,94 @@ fn force_replaces_the_files_and_keeps_others() {
         report.starts_with("cable-driving follower — design #1"),
         "{report}"
     );
+    assert!(
+        !dir.join("design3.cir").exists(),
+        "a file of the old run stayed"
+    );
+    check_files("cable-driver --force", &dir, false);
+    no_temps(dir.parent().unwrap(), &dir);
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn force_refuses_a_folder_holding_other_files() {
+    let dir = fresh_dir("foreign");
+    std::fs::create_dir_all(&dir).unwrap();
+    std::fs::write(dir.join("report.txt"), "stale").unwrap();
+    std::fs::write(dir.join("notes.txt"), "mine").unwrap();
+    let o = pick_out(&example("cable-driver"), &dir, &["--force"]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    assert!(stderr(&o).contains("holds `notes.txt`"), "{}", stderr(&o));
+    assert_eq!(
+        std::fs::read_to_string(dir.join("report.txt")).unwrap(),
+        "stale"
+    );
     assert_eq!(
         std::fs::read_to_string(dir.join("notes.txt")).unwrap(),
         "mine"
     );
-    check_files("cable-driver --force", &dir, false);
+    no_temps(dir.parent().unwrap(), &dir);
     let _ = std::fs::remove_dir_all(&dir);
+}
+
+// A real failure half-way: the parents `a/b` of `--out` are created, then
+// the staging folder's name (the last component with a prefix and a
+// suffix) is longer than the 255 bytes a file name may have (ENAMETOOLONG
+// on Linux). Nothing of the run may remain, the parents included.
+#[test]
+fn a_failed_out_removes_the_parent_folders_it_created() {
+    let base = fresh_dir("parents");
+    std::fs::create_dir_all(&base).unwrap();
+    let dir = base.join("a").join("b").join("x".repeat(250));
+    let o = pick_out(&example("cable-driver"), &dir, &[]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    assert!(stderr(&o).contains("staging folder"), "{}", stderr(&o));
+    let left: Vec<_> = std::fs::read_dir(&base).unwrap().collect();
+    assert!(left.is_empty(), "left behind: {left:?}");
+    let _ = std::fs::remove_dir_all(&base);
+}
+
+// SIGINT at assorted moments of a run: whenever it lands, the folder is
+// either complete (the signal came after the swap, or the run finished) or
+// absent, and no staging folder is left. The exact window of the writer is
+// covered step by step by the fault-injection tests in src/cli/out_dir.
+#[cfg(unix)]
+#[test]
+fn sigint_leaves_a_complete_folder_or_none() {
+    let spec = example("cable-driver");
+    for delay_ms in [0u64, 20, 60, 120, 200, 300, 450, 700] {
+        let dir = fresh_dir("sigint");
+        let child = Command::new(env!("CARGO_BIN_EXE_gatewright"))
+            .args(["design", spec.to_str().unwrap(), "--pick", "1", "--out"])
+            .arg(&dir)
+            .stdin(Stdio::null())
+            .stdout(Stdio::null())
+            .stderr(Stdio::piped())
+            .spawn()
+            .unwrap();
+        std::thread::sleep(std::time::Duration::from_millis(delay_ms));
+        let _ = Command::new("kill")
+            .args(["-INT", &child.id().to_string()])
+            .status();
+        let out = child.wait_with_output().unwrap();
+        let code = out.status.code();
+        if dir.exists() {
+            assert!(code == Some(0), "{delay_ms} ms: {code:?} with a folder");
+            for f in FILES {
+                assert!(dir.join(f).is_file(), "{delay_ms} ms: no {f}");
+            }
+        } else {
+            // Killed before writing (no code) or interrupted inside the
+            // writer and undone (130).
+            assert!(
+                code.is_none() || code == Some(130),
+                "{delay_ms} ms: {code:?} {}",
+                stderr(&out)
+            );
+        }
+        no_temps(dir.parent().unwrap(), &dir);
+        let _ = std::fs::remove_dir_all(&dir);
+    }
 }
 
 #[test]

@@ -1,7 +1,7 @@
 //! gatewright: discrete FET amplifier stages from requirements.
 //!
 //! Layers, each using only those above it:
-//! `units` → `catalog` → `device` → `spec`, `netlist` → `topology` →
+//! `units`, `lines` → `catalog` → `device` → `spec`, `netlist` → `topology` →
 //! `analysis` → `search` → `verify` → `rank` → `bench` (after synthesis:
 //! `crosscheck`, `caps` sized and confirmed by `verify`, `ratings` and
 //! cautions, `summary` and `view`: plain data) → `report` (formats only) →
@@ -24,6 +24,7 @@ pub mod bench;
 pub mod catalog;
 pub mod cli;
 pub mod device;
+pub mod lines;
 pub mod netlist;
 pub mod rank;
 pub mod report;

@@ -22,6 +22,7 @@ use serde::Deserialize;
 use toml::Spanned;
 
 use super::{Catalog, CatalogError, Part, RELATIVE_SLACK};
+use crate::lines::LineIndex;
 use crate::units::{format_value, parse_quantity, Quantity};
 
 #[derive(Deserialize)]
@@ -41,23 +42,15 @@ struct RawPart {
     power: Option<Spanned<toml::Value>>,
 }
 
-/// 1-based line and column (in characters) of byte offset `at` in `text`.
-fn line_col(text: &str, at: usize) -> (usize, usize) {
-    let before = text.get(..at).unwrap_or(text);
-    let line = before.matches('\n').count() + 1;
-    let line_start = before.rfind('\n').map_or(0, |i| i + 1);
-    let column = before.get(line_start..).map_or(0, |s| s.chars().count()) + 1;
-    (line, column)
-}
-
 /// Reads fields against the source text so errors quote it and give lines.
 struct Reader<'a> {
     text: &'a str,
+    lines: LineIndex<'a>,
 }
 
 impl Reader<'_> {
     fn line(&self, at: usize) -> usize {
-        line_col(self.text, at).0
+        self.lines.line(at)
     }
 
     fn error<T>(&self, field: &str, raw: &Spanned<T>, rule: &str) -> CatalogError {
@@ -144,8 +137,9 @@ impl Reader<'_> {
 /// not a finite resistance above 0 ohms, a tolerance outside `[0, 1)` or
 /// missing, a power rating not above 0 watts, or a value listed twice.
 pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
+    let lines = LineIndex::new(text);
     let raw: RawStock = toml::from_str(text).map_err(|e| {
-        let (line, column) = e.span().map_or((1, 1), |s| line_col(text, s.start));
+        let (line, column) = e.span().map_or((1, 1), |s| lines.line_col(s.start));
         CatalogError::Syntax {
             line,
             column,
@@ -153,7 +147,7 @@ pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
             message: e.message().trim().replace('\n', "; "),
         }
     })?;
-    let r = Reader { text };
+    let r = Reader { text, lines };
 
     let name = match &raw.name {
         None => "stock".to_string(),

@@ -2,6 +2,7 @@
 //! besides writing outputs).
 
 use anyhow::{bail, Context, Result};
+use std::io::Read;
 use std::path::Path;
 
 use crate::analysis::Problem;
@@ -18,10 +19,69 @@ pub(crate) struct Loaded {
     pub(crate) catalog: Catalog,
 }
 
+/// The most bytes an input file (specification, stock list, design JSON)
+/// may hold: 64 MiB, about 1.5 million stock-list parts. A larger file, or
+/// a pipe or device that gives more (`/dev/zero`), is refused rather than
+/// read until memory runs out.
+pub(crate) const MAX_INPUT_BYTES: u64 = 64 << 20;
+
+/// The text of an input file, at most [`MAX_INPUT_BYTES`]. Pipes and
+/// devices are read up to the limit as well (a shell's `<(...)` is a
+/// pipe); errors name the file and the limit. `what` names the file's role
+/// in messages ("specification", "stock list").
+pub(crate) fn read_text(path: &Path, what: &str) -> Result<String> {
+    read_bounded(path, what, MAX_INPUT_BYTES)
+}
+
+fn read_bounded(path: &Path, what: &str, limit: u64) -> Result<String> {
+    let name = path.display();
+    let file = std::fs::File::open(path).with_context(|| format!("reading `{name}`"))?;
+    // A regular file's size is known before reading; a pipe or device
+    // reports 0 and is read up to the limit.
+    if let Ok(meta) = file.metadata() {
+        if meta.is_file() && meta.len() > limit {
+            bail!(
+                "`{name}`: the {what} is {}, over the limit of {} for an input file",
+                mib(meta.len()),
+                mib(limit)
+            );
+        }
+    }
+    let mut bytes = Vec::new();
+    file.take(limit + 1)
+        .read_to_end(&mut bytes)
+        .with_context(|| format!("reading `{name}`"))?;
+    if bytes.len() as u64 > limit {
+        bail!(
+            "`{name}`: the {what} runs past the limit of {} for an input file (read as a stream, from a pipe or device)",
+            mib(limit)
+        );
+    }
+    String::from_utf8(bytes).map_err(|e| {
+        anyhow::anyhow!(
+            "reading `{name}`: the {what} is not UTF-8 text (invalid at byte offset {})",
+            e.utf8_error().valid_up_to()
+        )
+    })
+}
+
+/// Bytes in mebibytes for messages: `64 MiB`, `70.3 MiB` (below 1 MiB in
+/// bytes).
+fn mib(bytes: u64) -> String {
+    if bytes < 1 << 20 {
+        return format!("{bytes} bytes");
+    }
+    let m = bytes as f64 / f64::from(1u32 << 20);
+    if m.fract() == 0.0 {
+        format!("{m:.0} MiB")
+    } else {
+        format!("{m:.1} MiB")
+    }
+}
+
 /// Read and check a specification, and load its catalog.
 pub(crate) fn spec(path: &Path) -> Result<Loaded> {
-    let text =
-        std::fs::read_to_string(path).with_context(|| format!("reading `{}`", path.display()))?;
+    let text = read_text(path, "specification")?;
     let mut spec = crate::spec::parse(&text).with_context(|| format!("in `{}`", path.display()))?;
     // A specification without a `name` is titled by its file.
     if spec.name.trim().is_empty() {
@@ -40,13 +100,8 @@ pub(crate) fn spec(path: &Path) -> Result<Loaded> {
         CatalogChoice::StockFile(f) => {
             let base = path.parent().unwrap_or_else(|| Path::new("."));
             let file = base.join(f);
-            let text = std::fs::read_to_string(&file).with_context(|| {
-                format!(
-                    "in `{}`: `parts.series` = \"{f}\": reading `{}`",
-                    path.display(),
-                    file.display()
-                )
-            })?;
+            let text = read_text(&file, "stock list")
+                .with_context(|| format!("in `{}`: `parts.series` = \"{f}\"", path.display()))?;
             stock::parse(&text).with_context(|| format!("in stock list `{}`", file.display()))?
         }
     };
@@ -209,4 +264,51 @@ pub(crate) fn parse_span(text: &str) -> Result<(f64, f64)> {
 /// Netlist inputs for a device corner with mid-band placeholder capacitors.
 pub(crate) fn netlist_input(p: &Problem, corner: &Corner) -> NetlistInput {
     p.netlist_input(corner)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn scratch(tag: &str) -> std::path::PathBuf {
+        let dir =
+            std::env::temp_dir().join(format!("gatewright-load-{tag}-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        std::fs::create_dir_all(&dir).unwrap();
+        dir
+    }
+
+    #[test]
+    fn a_file_at_the_limit_is_read_and_one_byte_more_is_refused() {
+        let dir = scratch("limit");
+        let path = dir.join("spec.toml");
+        std::fs::write(&path, "a = 1\n").unwrap();
+        assert_eq!(read_bounded(&path, "specification", 6).unwrap(), "a = 1\n");
+        let e = read_bounded(&path, "specification", 5).unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            format!(
+                "`{}`: the specification is 6 bytes, over the limit of 5 bytes for an input file",
+                path.display()
+            )
+        );
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+
+    #[test]
+    fn a_device_is_read_up_to_the_limit_only() {
+        // /dev/zero never ends: reading it whole would exhaust memory.
+        let e = read_bounded(Path::new("/dev/zero"), "stock list", 1 << 20).unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            "`/dev/zero`: the stock list runs past the limit of 1 MiB for an input file (read as a stream, from a pipe or device)"
+        );
+    }
+
+    #[test]
+    fn sizes_are_given_in_mebibytes() {
+        assert_eq!(mib(64 << 20), "64 MiB");
+        assert_eq!(mib((64 << 20) + (1 << 19)), "64.5 MiB");
+        assert_eq!(mib(1000), "1000 bytes");
+    }
 }

@@ -69,7 +69,7 @@ fn from_design_file(
     family: crate::device::Family,
 ) -> Result<(&'static dyn Topology, Vec<f64>)> {
     let name = file.display();
-    let text = std::fs::read_to_string(file).with_context(|| format!("reading `{name}`"))?;
+    let text = super::load::read_text(file, "design file")?;
     let root: Value =
         serde_json::from_str(&text).with_context(|| format!("`{name}` is not valid JSON"))?;
     let (entry, at) = match root.get("designs") {

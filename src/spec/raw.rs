@@ -7,6 +7,7 @@
 //! with the dotted field name.
 
 use super::error::SpecError;
+use crate::lines::LineIndex;
 use serde::de::{self, Deserialize, Deserializer, MapAccess, SeqAccess, Visitor};
 use std::fmt;
 use toml::Spanned;
@@ -143,25 +144,17 @@ impl<'de> Visitor<'de> for NodeVisitor {
     }
 }
 
-/// 1-based line and column of a byte offset.
-pub(crate) fn line_col(text: &str, offset: usize) -> (usize, usize) {
-    let before = text.get(..offset).unwrap_or(text);
-    let line = before.matches('\n').count() + 1;
-    let col = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1;
-    (line, col)
-}
-
-fn set_lines(entries: &mut [Entry], text: &str) {
+fn set_lines(entries: &mut [Entry], lines: &LineIndex<'_>) {
     for e in entries {
-        e.line = line_col(text, e.offset).0;
-        set_lines_node(&mut e.value, text);
+        e.line = lines.line(e.offset);
+        set_lines_node(&mut e.value, lines);
     }
 }
 
-fn set_lines_node(n: &mut Node, text: &str) {
+fn set_lines_node(n: &mut Node, lines: &LineIndex<'_>) {
     match n {
-        Node::Table(es) => set_lines(es, text),
-        Node::Array(items) => items.iter_mut().for_each(|i| set_lines_node(i, text)),
+        Node::Table(es) => set_lines(es, lines),
+        Node::Array(items) => items.iter_mut().for_each(|i| set_lines_node(i, lines)),
         _ => {}
     }
 }
@@ -169,8 +162,9 @@ fn set_lines_node(n: &mut Node, text: &str) {
 /// Parse TOML text into the root table's entries, with lines filled in.
 /// A TOML syntax error carries its line and column.
 pub(crate) fn parse_document(text: &str) -> Result<Vec<Entry>, SpecError> {
+    let lines = LineIndex::new(text);
     let root: Node = toml::from_str(text).map_err(|e| {
-        let (line, col) = e.span().map_or((1, 1), |s| line_col(text, s.start));
+        let (line, col) = e.span().map_or((1, 1), |s| lines.line_col(s.start));
         let message = if e.message().contains(DATETIME_KEY) {
             "a date-time is not a value any key of a specification takes".to_string()
         } else {
@@ -191,7 +185,7 @@ pub(crate) fn parse_document(text: &str) -> Result<Vec<Entry>, SpecError> {
             message: "the document is not a table".to_string(),
         });
     };
-    set_lines(&mut entries, text);
+    set_lines(&mut entries, &lines);
     Ok(entries)
 }
 

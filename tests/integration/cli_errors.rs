@@ -145,7 +145,7 @@ fn spec_cases() -> Vec<Case> {
             what: "syntax: not UTF-8",
             spec: Spec::NotUtf8,
             files: &[],
-            want: "reading `DIR/spec.toml`: stream did not contain valid UTF-8",
+            want: "reading `DIR/spec.toml`: the specification is not UTF-8 text (invalid at byte offset 8)",
         },
         Case {
             what: "type: gain as words",
@@ -589,6 +589,71 @@ fn unreadable_spec_paths_exit_2() {
         &dir,
         "reading `DIR/a-folder`: Is a directory (os error 21)",
     );
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Input files are read up to 64 MiB (README, "The specification file"):
+/// a larger file is refused by its size, a device that never ends is read
+/// up to the limit only, and a pipe under it is read as usual.
+#[test]
+#[allow(clippy::unwrap_used)]
+fn oversized_and_endless_inputs_are_refused_naming_the_limit() {
+    let dir = temp_dir("cli-limits");
+    // A sparse file: 65 MiB long, no disk used.
+    let big = dir.join("big.toml");
+    std::fs::File::create(&big)
+        .unwrap()
+        .set_len(65 << 20)
+        .unwrap();
+    let out = run(&["design", big.to_str().unwrap()], &dir);
+    assert_refused(
+        "oversized spec",
+        &out,
+        &dir,
+        "`DIR/big.toml`: the specification is 65 MiB, over the limit of 64 MiB for an input file",
+    );
+    std::fs::write(
+        dir.join("spec.toml"),
+        with("series = \"E24\"", "series = \"big.toml\""),
+    )
+    .unwrap();
+    let out = run(&["design", "spec.toml"], &dir);
+    assert_refused(
+        "oversized stock list",
+        &out,
+        &dir,
+        "in `spec.toml`: `parts.series` = \"big.toml\": `big.toml`: the stock list is 65 MiB, over the limit of 64 MiB for an input file",
+    );
+    let out = run(&["design", "/dev/zero"], &dir);
+    assert_refused(
+        "endless device",
+        &out,
+        &dir,
+        "`/dev/zero`: the specification runs past the limit of 64 MiB for an input file (read as a stream, from a pipe or device)",
+    );
+    // A pipe (as a shell's `<(...)` gives) under the limit is read.
+    let mut child = Command::new(env!("CARGO_BIN_EXE_gatewright"))
+        .args(["design", "/dev/stdin", "--format", "json"])
+        .current_dir(&dir)
+        .stdin(std::process::Stdio::piped())
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    {
+        use std::io::Write;
+        let mut stdin = child.stdin.take().unwrap();
+        stdin.write_all(BASE.as_bytes()).unwrap();
+    }
+    let out = child.wait_with_output().unwrap();
+    // BASE has no feasible design (exit 1): an answer, not an error.
+    assert_eq!(
+        out.status.code(),
+        Some(1),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(String::from_utf8_lossy(&out.stdout).contains("\"base\""));
     let _ = std::fs::remove_dir_all(&dir);
 }
 

@@ -1,21 +1,35 @@
 //! Random valid specifications for the property tests: device strength
 //! scaled to the resistor decade so that currents and gains are sensible,
-//! and a mix of families, rails, targets and tolerances.
+//! and a mix of families, rails, targets and tolerances. A quarter of the
+//! devices are exact (no spread: one corner, where many designs may be
+//! feasible) and a quarter of the gain windows are tight (±2–7 %).
+//!
+//! The tail benchmark (`benches/random_specs.rs`) draws from the same
+//! generator and widens the shelf.
 
 use gatewright::catalog::ESeries;
 use gatewright::device::{Device, Family, ParamRange, Params, Strength};
 use gatewright::spec::{CatalogChoice, Limits, Parts, Polarity, Supply, Target, ValidSpec};
 use proptest::prelude::*;
 
+/// A device of `family` with parameters a..a·sa and b..b·sb (VT or
+/// |VGS(off)|, volts; K or IDSS); a factor of 1 gives an exact value.
 pub(crate) fn device(family: Family, a: f64, b: f64, sa: f64, sb: f64) -> Device {
+    let range = |x: f64, s: f64| {
+        if s == 1.0 {
+            ParamRange::exact(x)
+        } else {
+            ParamRange::between(x, x * s)
+        }
+    };
     let params = match family {
         Family::NEnhancementMosfet => Params::Enhancement {
-            vth: ParamRange::between(a, a * sa),
-            strength: Strength::K(ParamRange::between(b, b * sb)),
+            vth: range(a, sa),
+            strength: Strength::K(range(b, sb)),
         },
         _ => Params::Depletion {
-            idss: ParamRange::between(b, b * sb),
-            vgs_off: ParamRange::between(-a, -a * sa),
+            idss: range(b, sb),
+            vgs_off: range(-a, sa),
         },
     };
     Device {
@@ -50,6 +64,8 @@ pub(crate) fn case() -> impl Strategy<Value = Case> {
         (0usize..3, prop_oneof![Just(0.0), Just(0.02), Just(0.1)]),
         // Supply tolerance, source resistance, one limit, λ.
         (0usize..3, 0usize..3, 0usize..4, 0usize..3),
+        // An exact device (no spread), a tight gain window.
+        (0usize..4, 0usize..4),
     )
         .prop_map(
             |(
@@ -61,6 +77,7 @@ pub(crate) fn case() -> impl Strategy<Value = Case> {
                 (decade, zin_frac, vds_min),
                 (polar, rtol),
                 (stol, rsig, limit, lambda),
+                (exact, tight),
             )| {
                 let family = Family::ALL[fam];
                 // Device strength scaled to the decade so currents are sensible.
@@ -87,6 +104,8 @@ pub(crate) fn case() -> impl Strategy<Value = Case> {
                     },
                     _ => Limits::default(),
                 };
+                let (sa, sb) = if exact == 0 { (1.0, 1.0) } else { (sa, sb) };
+                let tol = if tight == 0 { 0.15 * tol } else { tol };
                 let mut device = device(family, a, b, sa, sb);
                 if lambda == 2 {
                     device.lambda = ParamRange::exact(0.01);

@@ -10,6 +10,7 @@ mod args;
 mod bench;
 mod load;
 mod out_dir;
+mod progress;
 mod verify_cmd;
 
 use anyhow::{bail, Context, Result};
@@ -219,7 +220,14 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     if a.spice_corners && a.format != Format::Spice {
         bail!("`--spice-corners` works with `--format spice` only");
     }
-    let mut outcome = search::run(&loaded.spec, &shelf, &opts)?;
+    let counts = search::Progress::new();
+    let label = match a.search {
+        args::SearchArg::Exhaustive => "exhaustive search",
+        args::SearchArg::Smart => "searching",
+    };
+    let mut outcome = progress::while_running(label, &counts, || {
+        search::run_with_progress(&loaded.spec, &shelf, &opts, &counts)
+    })?;
     let full = Problem::new(&loaded.spec);
     // Every ranked design is confirmed by the independent nodal solver at
     // every device corner; one it does not confirm is never shown.

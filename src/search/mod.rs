@@ -12,7 +12,10 @@
 
 mod aid;
 pub mod exhaustive;
+mod progress;
 pub mod smart;
+
+pub use progress::Progress;
 
 use crate::analysis::{
     all_pass, assess, gain_window, lead_extremes, margins, worst_case, worst_case_of, Problem,
@@ -94,7 +97,8 @@ pub struct Options {
     pub per_topology: usize,
     /// Which search.
     pub method: Method,
-    /// Largest number of combinations the exhaustive search accepts.
+    /// Largest number of device-law evaluations the exhaustive search's
+    /// corner pass may make ([`exhaustive::corner_evaluations`]).
     pub budget: f64,
     /// λ > 0, default search: the points of the VDS fold grid of the box
     /// bounds, 2 to 24 (values outside are taken to the nearer end).
@@ -112,7 +116,7 @@ impl Default for Options {
             top: 10,
             per_topology: 10,
             method: Method::Smart,
-            budget: 1e9,
+            budget: exhaustive::BUDGET,
             fold_points: None,
         }
     }
@@ -193,13 +197,19 @@ pub struct Outcome {
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum SearchError {
     /// The exhaustive search would exceed its budget.
-    #[error("the exhaustive search would visit {combinations:.3e} combinations (about {seconds:.0} s), over its budget of {budget:.0e}; use the default search, a narrower `[parts] range`, or a coarser series")]
+    #[error("the exhaustive search would make {evaluations:.2e} device evaluations ({combinations:.2e} combinations × {corners} device corners), about {} on {threads} cores, over its budget of {budget:.1e} (about {} here); use the default search, a narrower `[parts] range`, or a coarser series", duration(*seconds), duration(exhaustive::seconds(*budget, *threads)))]
     OverBudget {
         /// Combinations it would visit.
         combinations: f64,
-        /// Rough time estimate, seconds.
+        /// Device corners each combination is evaluated at.
+        corners: usize,
+        /// Device-law evaluations of its corner pass.
+        evaluations: f64,
+        /// Time estimate on `threads` cores, seconds.
         seconds: f64,
-        /// The budget.
+        /// Cores the estimate assumes (those of this machine).
+        threads: usize,
+        /// The budget, evaluations.
         budget: f64,
     },
     /// The shelf is empty after applying `[parts] range`.
@@ -261,6 +271,16 @@ impl MissTracker {
         self.best.as_ref().is_none_or(|(b, _, _)| worst < *b)
     }
 
+    /// The closer of this miss and `later`'s (this one on a tie, as one
+    /// search over both would keep).
+    fn absorb(&mut self, later: MissTracker) {
+        if let Some((b, v, wc)) = later.best {
+            if self.best.as_ref().is_none_or(|(a, _, _)| b < *a) {
+                self.best = Some((b, v, wc));
+            }
+        }
+    }
+
     pub(crate) fn note(&mut self, p: &Problem, t: &dyn Topology, values: &[f64], wc: &WorstCase) {
         let worst = Self::shortfall(p, t, wc);
         if worst.is_finite() && self.best.as_ref().is_none_or(|(b, _, _)| worst < *b) {
@@ -300,6 +320,18 @@ impl MissTracker {
     }
 }
 
+/// A duration for people: seconds under two minutes, else minutes or
+/// hours, two significant figures at most.
+fn duration(seconds: f64) -> String {
+    if seconds < 120.0 {
+        format!("{seconds:.0} s")
+    } else if seconds < 7200.0 {
+        format!("{:.0} min", seconds / 60.0)
+    } else {
+        format!("{:.0} h", seconds / 3600.0)
+    }
+}
+
 /// A percentage for people: two decimals, or two significant figures in
 /// scientific form when it is tiny (never an SI prefix).
 fn percent(x: f64) -> String {
@@ -328,14 +360,63 @@ pub(crate) struct Collector<'a> {
     pub(crate) spare: Option<&'a aid::Spare>,
     /// The run's divider pairs, shared by the topologies.
     pub(crate) pairs: Option<&'a smart::PairCache>,
+    /// Keep the whole Pareto front (the exhaustive search): no score
+    /// threshold, no cut at `keep`, and a design that a kept one dominates
+    /// takes no place. Without it the best `keep` by score are kept, and
+    /// a dominated one among them can leave fewer than `top` rows after
+    /// the Pareto filter.
+    pub(crate) front: bool,
 }
 
-impl Collector<'_> {
+impl<'a> Collector<'a> {
+    /// An empty collector for topology `index` of the registry.
+    pub(crate) fn new(
+        p: &'a Problem,
+        index: usize,
+        opts: &Options,
+        spare: Option<&'a aid::Spare>,
+        pairs: Option<&'a smart::PairCache>,
+    ) -> Self {
+        Collector {
+            p,
+            t: TOPOLOGIES[index],
+            index,
+            prefer: opts.prefer,
+            fold_points: opts.fold_points,
+            keep: opts.per_topology.max(opts.top).max(1),
+            designs: Vec::new(),
+            miss: MissTracker::default(),
+            effort: Effort::default(),
+            top_scores: Vec::new(),
+            spare,
+            pairs,
+            front: opts.method == Method::Exhaustive,
+        }
+    }
+
+    /// The kept designs in rank order, or why there are none; with the
+    /// work done.
+    pub(crate) fn finish(mut self) -> TopologyResult {
+        if self.designs.is_empty() {
+            let r = self.miss.rejection(
+                self.p,
+                self.t,
+                &format!(
+                    "{}: no bias network inside parts.range keeps the device on and saturated",
+                    self.t.id()
+                ),
+            );
+            return (Err(r), self.effort);
+        }
+        self.trim();
+        (Ok(self.designs), self.effort)
+    }
+
     /// The score a candidate must reach to enter the kept list (−∞ while
     /// the list is not full). A candidate whose score bound is below it
     /// cannot be kept, whatever its exact check says.
     pub(crate) fn threshold(&self) -> f64 {
-        if self.top_scores.len() >= self.keep {
+        if !self.front && self.top_scores.len() >= self.keep {
             self.top_scores[self.keep - 1]
         } else {
             f64::NEG_INFINITY
@@ -379,10 +460,7 @@ impl Collector<'_> {
         }
         let metrics = Metrics::new(&self.p.spec, &wc, parts);
         let score = score(&self.p.spec, &metrics, self.prefer);
-        let at = self.top_scores.partition_point(|&x| x >= score);
-        self.top_scores.insert(at, score);
-        self.top_scores.truncate(self.keep);
-        self.designs.push(Design {
+        self.admit(Design {
             topology: self.t,
             topology_index: self.index,
             values: values.to_vec(),
@@ -391,13 +469,44 @@ impl Collector<'_> {
             metrics,
             score,
         });
-        if self.designs.len() >= 8 * self.keep {
-            self.trim();
-        }
         true
     }
 
-    /// Keep the best `keep` designs, in rank order.
+    /// Keep a feasible design (with `front`, unless a kept one dominates
+    /// it: whatever dominates it scores at least as high and is kept or
+    /// dominated in turn, so it would never be shown).
+    fn admit(&mut self, d: Design) {
+        if self.front {
+            if self.designs.iter().any(|k| k.metrics.dominates(&d.metrics)) {
+                return;
+            }
+            self.designs.retain(|k| !d.metrics.dominates(&k.metrics));
+        }
+        let at = self.top_scores.partition_point(|&x| x >= d.score);
+        self.top_scores.insert(at, d.score);
+        self.top_scores.truncate(self.keep);
+        self.designs.push(d);
+        if !self.front && self.designs.len() >= 8 * self.keep {
+            self.trim();
+        }
+    }
+
+    /// Take in the designs, closest miss and work of a later part of the
+    /// same topology's search (the exhaustive search's chunks, merged in
+    /// order: the result is that of one search over both).
+    pub(crate) fn absorb(&mut self, later: Collector<'_>) {
+        for d in later.designs {
+            self.admit(d);
+        }
+        self.miss.absorb(later.miss);
+        self.effort.configurations += later.effort.configurations;
+        self.effort.corner_checks += later.effort.corner_checks;
+        self.effort.screen_checks += later.effort.screen_checks;
+        self.effort.exact_checks += later.effort.exact_checks;
+    }
+
+    /// Keep the best `keep` designs (with `front`, every one), in rank
+    /// order.
     pub(crate) fn trim(&mut self) {
         self.designs.sort_by(|a, b| {
             order(
@@ -405,7 +514,9 @@ impl Collector<'_> {
                 (b.score, b.topology_index, &b.values),
             )
         });
-        self.designs.truncate(self.keep);
+        if !self.front {
+            self.designs.truncate(self.keep);
+        }
     }
 }
 
@@ -471,6 +582,10 @@ fn structural(p: &Problem, t: &dyn Topology) -> Option<Rejection> {
     None
 }
 
+/// One topology's answer: its kept designs in rank order, or why it gave
+/// none; with the work done.
+pub(crate) type TopologyResult = (Result<Vec<Design>, Rejection>, Effort);
+
 /// Search one topology (by registry position): its kept designs, or why
 /// it gave none, with the work done.
 fn search_one(
@@ -480,42 +595,17 @@ fn search_one(
     index: usize,
     spare: Option<&aid::Spare>,
     pairs: Option<&smart::PairCache>,
-) -> (Result<Vec<Design>, Rejection>, Effort) {
+) -> TopologyResult {
     let t = TOPOLOGIES[index];
     if let Some(r) = structural(p, t) {
         return (Err(r), Effort::default());
     }
-    let mut col = Collector {
-        p,
-        t,
-        index,
-        prefer: opts.prefer,
-        fold_points: opts.fold_points,
-        keep: opts.per_topology.max(opts.top).max(1),
-        designs: Vec::new(),
-        miss: MissTracker::default(),
-        effort: Effort::default(),
-        top_scores: Vec::new(),
-        spare,
-        pairs,
-    };
+    let mut col = Collector::new(p, index, opts, spare, pairs);
     match opts.method {
         Method::Smart => smart::search(&mut col, shelf),
         Method::Exhaustive => exhaustive::search(&mut col, shelf),
     }
-    if col.designs.is_empty() {
-        let r = col.miss.rejection(
-            p,
-            t,
-            &format!(
-                "{}: no bias network inside parts.range keeps the device on and saturated",
-                t.id()
-            ),
-        );
-        return (Err(r), col.effort);
-    }
-    col.trim();
-    (Ok(col.designs), col.effort)
+    col.finish()
 }
 
 /// `f` for every topology of the registry, in registry order. The
@@ -562,6 +652,17 @@ fn each_topology<R: Send>(f: impl Fn(usize, &aid::Spare) -> R + Sync) -> Vec<(us
 
 /// Run the search.
 pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, SearchError> {
+    run_with_progress(spec, shelf, opts, &Progress::new())
+}
+
+/// Run the search, counting its progress in `progress` (read it from
+/// another thread to show it).
+pub fn run_with_progress(
+    spec: &ValidSpec,
+    shelf: &Shelf,
+    opts: &Options,
+    progress: &Progress,
+) -> Result<Outcome, SearchError> {
     if shelf.values.is_empty() {
         return Err(SearchError::EmptyShelf {
             shelf: shelf.name.clone(),
@@ -582,19 +683,30 @@ pub fn run(spec: &ValidSpec, shelf: &Shelf, opts: &Options) -> Result<Outcome, S
         exhaustive_combinations: exhaustive::combinations(&p, &shelf),
         ..Effort::default()
     };
-    if opts.method == Method::Exhaustive && effort.exhaustive_combinations > opts.budget {
-        return Err(SearchError::OverBudget {
-            combinations: effort.exhaustive_combinations,
-            seconds: effort.exhaustive_combinations * 2e-7,
-            budget: opts.budget,
-        });
+    if opts.method == Method::Exhaustive {
+        let evaluations = exhaustive::corner_evaluations(&p, &shelf);
+        if evaluations > opts.budget {
+            let threads = exhaustive::threads();
+            return Err(SearchError::OverBudget {
+                combinations: effort.exhaustive_combinations,
+                corners: p.corners.len(),
+                evaluations,
+                seconds: exhaustive::seconds(evaluations, threads),
+                threads,
+                budget: opts.budget,
+            });
+        }
     }
     let mut all = Vec::new();
     let mut rejected = Vec::new();
     let pairs = smart::PairCache::default();
-    for (_, (outcome, e)) in
-        each_topology(|i, spare| search_one(&p, &shelf, opts, i, Some(spare), Some(&pairs)))
-    {
+    let results = match opts.method {
+        Method::Exhaustive => exhaustive::search_all(&p, &shelf, opts, progress),
+        Method::Smart => {
+            each_topology(|i, spare| search_one(&p, &shelf, opts, i, Some(spare), Some(&pairs)))
+        }
+    };
+    for (_, (outcome, e)) in results {
         effort.configurations += e.configurations;
         effort.corner_checks += e.corner_checks;
         effort.exact_checks += e.exact_checks;

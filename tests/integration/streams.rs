@@ -337,3 +337,43 @@ fn control_characters_in_the_name_are_escaped() {
     }
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+#[allow(clippy::unwrap_used)]
+fn an_exhaustive_search_over_its_budget_is_refused_at_once_with_its_size() {
+    let dir = temp_dir("streams-budget");
+    // E24 over 10 Ω–10 MΩ: 1.5e10 combinations at 4 device corners.
+    std::fs::write(dir.join("spec.toml"), BASE).unwrap();
+    let out = run(&["design", "spec.toml", "--search", "exhaustive"], &dir);
+    let stderr = String::from_utf8(out.stderr).unwrap();
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(out.stdout.is_empty());
+    assert!(
+        stderr.starts_with("error: the exhaustive search would make ")
+            && stderr.contains("combinations × 4 device corners")
+            && stderr.contains("over its budget of 3.2e9"),
+        "{stderr}"
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+#[allow(clippy::unwrap_used)]
+fn an_exhaustive_search_draws_no_progress_into_a_pipe() {
+    let dir = temp_dir("streams-progress");
+    // E6 over 100 Ω–1 MΩ: a run of one to two seconds, longer than the half
+    // second after which a terminal would get a progress bar.
+    let spec = BASE.replace(
+        "series = \"E24\"",
+        "series = \"E6\"\nrange = [\"100\", \"1M\"]",
+    );
+    std::fs::write(dir.join("spec.toml"), spec).unwrap();
+    let out = run(&["design", "spec.toml", "--search", "exhaustive"], &dir);
+    assert!(matches!(out.status.code(), Some(0 | 1)));
+    assert!(
+        out.stderr.is_empty(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -201,16 +201,13 @@ fn overdrive(law: &SquareLaw, i: f64, a: f64, b: f64) -> f64 {
     v
 }
 
-/// The output swing of `stage` at operating point `op` of a device with
-/// law `law` (the same law that gave `op`), with the gate rating
-/// `vgs_max_v` (a JFET's default 0 V; `None` when no rating applies).
-pub fn swing(stage: &Stage, law: &SquareLaw, op: &OpPoint, vgs_max_v: Option<f64>) -> Swing {
+fn load_line(stage: &Stage, law: &SquareLaw, op: &OpPoint, vgs_max_v: Option<f64>) -> LoadLine {
     let unit = Injection {
         from: D,
         to: S,
         amps: 1.0,
     };
-    let line = LoadLine {
+    LoadLine {
         law: *law,
         id_q: op.id_a,
         vov_q: law.vov(op.vgs_v),
@@ -219,7 +216,62 @@ pub fn swing(stage: &Stage, law: &SquareLaw, op: &OpPoint, vgs_max_v: Option<f64
         per_delta: stage.solve(0.0, 0.0, 0.0, &[unit]),
         out_node: stage.output_node(),
         vgs_max_v,
+    }
+}
+
+/// The EMF, volts, that takes the output of `stage` at `op` to `out_v`
+/// (signed, the AC part) along the square law, saturation assumed
+/// throughout (the law is continued past the triode and gate edges).
+/// `None` when the output cannot get there before the current reaches
+/// zero.
+pub fn emf_for_output(stage: &Stage, law: &SquareLaw, op: &OpPoint, out_v: f64) -> Option<f64> {
+    let line = load_line(stage, law, op, None);
+    if out_v == 0.0 {
+        return Some(0.0);
+    }
+    // The output moves one way with Δ: find the direction that reaches out_v.
+    let rising = line.at(op.id_a.max(1e-12) * 1e-6).out_v;
+    let toward = if (rising > 0.0) == (out_v > 0.0) {
+        1.0
+    } else {
+        -1.0
     };
+    let (mut near, mut far) = (
+        0.0_f64,
+        if toward > 0.0 {
+            op.id_a.max(1e-9)
+        } else {
+            -op.id_a
+        },
+    );
+    if toward > 0.0 {
+        let mut grow = 0;
+        while line.at(far).out_v.abs() < out_v.abs() && grow < 200 {
+            far *= 2.0;
+            grow += 1;
+        }
+    } else if line.at(far).out_v.abs() < out_v.abs() {
+        return None;
+    }
+    for _ in 0..200 {
+        let mid = 0.5 * (near + far);
+        if mid == near || mid == far {
+            break;
+        }
+        if line.at(mid).out_v.abs() < out_v.abs() {
+            near = mid;
+        } else {
+            far = mid;
+        }
+    }
+    Some(line.at(0.5 * (near + far)).emf_v)
+}
+
+/// The output swing of `stage` at operating point `op` of a device with
+/// law `law` (the same law that gave `op`), with the gate rating
+/// `vgs_max_v` (a JFET's default 0 V; `None` when no rating applies).
+pub fn swing(stage: &Stage, law: &SquareLaw, op: &OpPoint, vgs_max_v: Option<f64>) -> Swing {
+    let line = load_line(stage, law, op, vgs_max_v);
     let bias = Edge {
         out_v: 0.0,
         emf_v: 0.0,
@@ -310,6 +362,48 @@ mod tests {
         close(s.falling.out_v, 6.39456, 1e-5, "up");
         assert_eq!(s.falling.limit, Limit::Cutoff);
         close(s.falling.emf_v, -2.0, 1e-9, "input at cut-off");
+    }
+
+    // The EMF for a given output follows the same load line: the triode
+    // edge's output needs the edge's EMF, and the cut-off side cannot go
+    // past IDQ·rac.
+    #[test]
+    fn emf_for_an_output() {
+        let t = by_id("self-bias").unwrap();
+        let law = jfet(8e-3, -4.0);
+        let v = [1e6, 1e3, 4.7e3];
+        let e = evaluate(
+            t,
+            &v,
+            &Rails {
+                vdd_v: 15.0,
+                vss_v: 0.0,
+            },
+            &law,
+            10e3,
+            0.0,
+        );
+        let stage = Stage {
+            path: t.signal_path(&v),
+            rsig_ohm: 0.0,
+            rl_ohm: 10e3,
+        };
+        let s = swing(&stage, &law, &e.op, Some(0.0));
+        let at = |out: f64| emf_for_output(&stage, &law, &e.op, out);
+        close(
+            at(s.rising.out_v).unwrap(),
+            s.rising.emf_v,
+            1e-9,
+            "triode edge",
+        );
+        close(
+            at(0.5 * s.falling.out_v).unwrap(),
+            2f64.sqrt() - 2.0,
+            1e-9,
+            "half cut-off",
+        );
+        assert_eq!(at(1.01 * s.falling.out_v), None);
+        assert!(at(2.0 * s.rising.out_v).unwrap() > s.rising.emf_v);
     }
 
     // Unbypassed: 1.09366 V (triode, ΔI 0.3420591 mA, input +0.50634 V),

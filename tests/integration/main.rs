@@ -24,6 +24,8 @@ mod random_spec;
 mod robustness;
 /// The default search against the exhaustive reference.
 mod search_props;
+/// Output swing, temperature, noise and distortion against ngspice.
+mod signal_ngspice;
 mod spec_errors;
 /// Exit codes and streams of the binary.
 mod streams;

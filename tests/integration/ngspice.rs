@@ -16,7 +16,7 @@ use gatewright::topology::{by_id, evaluate, Caps, NetlistInput, Rails, TOPOLOGIE
 
 /// Test device classes, our own invention, each with two ranged parameters
 /// (four corners).
-fn device(family: Family, lambda: f64) -> Device {
+pub(crate) fn device(family: Family, lambda: f64) -> Device {
     let params = match family {
         Family::NJfet => Params::Depletion {
             idss: ParamRange::between(6e-3, 10e-3),
@@ -46,15 +46,15 @@ fn device(family: Family, lambda: f64) -> Device {
 /// One hand-picked design: every corner of its device saturates, and a JFET
 /// keeps VGS <= 0 (its gate junction off, so ngspice's gate diodes carry
 /// only leakage).
-struct Case {
-    topology: &'static str,
-    family: Family,
-    values: &'static [f64],
-    vdd_v: f64,
-    vss_v: f64,
-    rl_ohm: f64,
-    rsig_ohm: f64,
-    lambda_per_v: f64,
+pub(crate) struct Case {
+    pub(crate) topology: &'static str,
+    pub(crate) family: Family,
+    pub(crate) values: &'static [f64],
+    pub(crate) vdd_v: f64,
+    pub(crate) vss_v: f64,
+    pub(crate) rl_ohm: f64,
+    pub(crate) rsig_ohm: f64,
+    pub(crate) lambda_per_v: f64,
 }
 
 const J: Family = Family::NJfet;
@@ -62,7 +62,7 @@ const D: Family = Family::NDepletionMosfet;
 const E: Family = Family::NEnhancementMosfet;
 
 #[rustfmt::skip]
-const CASES: &[Case] = &[
+pub(crate) const CASES: &[Case] = &[
     Case { topology: "zero-bias", family: D, values: &[1e6, 1.5e3], vdd_v: 12.0, vss_v: 0.0, rl_ohm: 10e3, rsig_ohm: 0.0, lambda_per_v: 0.01 },
     Case { topology: "self-bias", family: J, values: &[1e6, 1e3, 2.2e3], vdd_v: 15.0, vss_v: 0.0, rl_ohm: 10e3, rsig_ohm: 10e3, lambda_per_v: 0.0 },
     Case { topology: "self-bias", family: D, values: &[1e6, 470.0, 2.2e3], vdd_v: 12.0, vss_v: 0.0, rl_ohm: 10e3, rsig_ohm: 0.0, lambda_per_v: 0.02 },

@@ -219,6 +219,14 @@ pub fn design_view(p: &Problem, rank: usize, d: &Design) -> DesignView {
     }
 }
 
+/// What every output of a nominal-mode run says (table, JSON, the bench
+/// files): its designs were checked at the nominal device and nominal
+/// resistor values only.
+pub const NOMINAL_ONLY: &str = "nominal only, not worst case";
+
+/// The sentence a nominal-mode output carries after [`NOMINAL_ONLY`].
+pub const NOMINAL_ONLY_WHY: &str = "checked at the nominal device and nominal resistor values only; not guaranteed across the datasheet spread or resistor tolerances";
+
 /// The result of `design`.
 #[derive(Debug, Clone, Serialize)]
 pub struct DesignReport {
@@ -226,6 +234,10 @@ pub struct DesignReport {
     pub name: String,
     /// `worst-case` or `nominal`.
     pub mode: String,
+    /// Nominal mode only: "nominal only, not worst case: …" (absent in
+    /// worst-case mode).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub mode_note: Option<String>,
     /// Resistor shelf name.
     pub series: String,
     /// Ranked feasible designs.
@@ -253,6 +265,9 @@ pub fn design_report(
             "worst-case"
         }
         .to_string(),
+        mode_note: out
+            .nominal_only
+            .then(|| format!("{NOMINAL_ONLY}: {NOMINAL_ONLY_WHY}")),
         series: shelf_name.to_string(),
         designs: out
             .designs

@@ -6,7 +6,7 @@
 //!
 //! This module computes; it prints nothing and writes no file.
 
-use crate::analysis::{assess, point, Check, Problem, WorstCase};
+use crate::analysis::{assess, point, worst_case, Check, Problem, WorstCase};
 use crate::bench::caps::{size, CapPlan, CapsError};
 use crate::bench::ratings::{cautions, resistor_duty, ResistorDuty};
 use crate::bench::summary::{design_view, DesignView, PointView};
@@ -111,8 +111,16 @@ pub struct BenchView {
     pub nominal: PointView,
     /// Every device corner, nominal values.
     pub corners: Vec<PointView>,
-    /// Requirement margins on the worst case.
+    /// Requirement margins on the worst case (in nominal mode, at the
+    /// nominal device and nominal values only).
     pub checks: Vec<Check>,
+    /// True when the design was checked at nominal values only
+    /// (`design --nominal`).
+    pub nominal_only: bool,
+    /// Nominal mode only: the requirement margins over the device's whole
+    /// datasheet spread and the supply extremes, with the design's
+    /// resistors at their nominal values (empty in worst-case mode).
+    pub spread_checks: Vec<Check>,
     /// Capacitors sized for `f_low` (None when the spec gives no `f_low`).
     pub caps: Option<CapPlan>,
     /// Cautions, most serious first.
@@ -223,12 +231,14 @@ pub fn response(
 }
 
 /// Build the bench view of design `d` ranked `rank` (1-based), from the
-/// full-spread problem `p` and the resistor shelf's name.
+/// full-spread problem `p` and the resistor shelf's name; `nominal_only`
+/// when the search checked nominal values only.
 pub fn bench_view(
     p: &Problem,
     series: &str,
     rank: usize,
     d: &Design,
+    nominal_only: bool,
 ) -> Result<BenchView, BenchError> {
     let t = d.topology;
     let caps = match p.spec.f_low_hz {
@@ -259,6 +269,12 @@ pub fn bench_view(
             .map(|c| PointView::new(&point(p, t, &d.values, c, &p.rails)))
             .collect(),
         checks: assess(p, t, &d.worst),
+        nominal_only,
+        spread_checks: if nominal_only {
+            assess(p, t, &worst_case(p, t, &d.values, &d.tolerances))
+        } else {
+            Vec::new()
+        },
         cautions: cautions(p, &d.worst, &duty),
         duty,
         caps,

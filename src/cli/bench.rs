@@ -50,7 +50,7 @@ pub(crate) fn run(
             if count == 1 { "" } else { "s" }
         );
     };
-    let view = bench_view(p, &report.series, pick, d)
+    let view = bench_view(p, &report.series, pick, d, outcome.nominal_only)
         .with_context(|| format!("design #{pick} ({})", d.topology.id()))?;
     let bom = bom_for(p, d, &report.series, &view);
     let report_text = text::bench(&view, &bom);
@@ -100,6 +100,16 @@ fn bom_for(p: &Problem, d: &Design, series: &str, view: &BenchView) -> Vec<BomRo
             );
         }
     }
+    if view.nominal_only {
+        // Every row says so: a BOM travels on its own.
+        for r in &mut rows {
+            r.notes = if r.notes.is_empty() {
+                crate::bench::summary::NOMINAL_ONLY.to_string()
+            } else {
+                format!("{}; {}", crate::bench::summary::NOMINAL_ONLY, r.notes)
+            };
+        }
+    }
     rows
 }
 
@@ -111,7 +121,10 @@ fn render(
     report_text: String,
 ) -> Vec<(&'static str, String)> {
     let t = d.topology;
-    let title = format!("{} — #{} {}", view.name, view.design.rank, t.id());
+    let mut title = format!("{} — #{} {}", view.name, view.design.rank, t.id());
+    if view.nominal_only {
+        title.push_str(&format!(" ({})", crate::bench::summary::NOMINAL_ONLY));
+    }
     let net = nominal_netlist(p, d, view.cap_values());
     let cap_note = match &view.caps {
         Some(plan) => format!(
@@ -120,10 +133,21 @@ fn render(
         ),
         None => "capacitors are 1 F placeholders: no [band] f_low was given".to_string(),
     };
+    let mut header = vec![format!("{}: nominal device", view.name), cap_note];
+    if view.nominal_only {
+        header.insert(
+            0,
+            format!(
+                "{}: {}",
+                crate::bench::summary::NOMINAL_ONLY,
+                crate::bench::summary::NOMINAL_ONLY_WHY
+            ),
+        );
+    }
     let spice = netlist_to_spice(
         &net,
         &format!("gatewright design #{} {}", view.design.rank, t.id()),
-        &[format!("{}: nominal device", view.name), cap_note],
+        &header,
     );
     let window = p.spec.limits.id_max_a.map(|m| (0.0, m));
     vec![

@@ -274,12 +274,26 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
 fn design_spice(full: &Problem, outcome: &search::Outcome, corners: bool) -> String {
     let mut s = String::new();
     let input = load::netlist_input(full, &full.nominal);
+    let note = outcome.nominal_only.then(|| {
+        format!(
+            "{}: {}",
+            crate::bench::summary::NOMINAL_ONLY,
+            crate::bench::summary::NOMINAL_ONLY_WHY
+        )
+    });
     for (i, d) in outcome.designs.iter().enumerate() {
         let rank = i + 1;
         let t = d.topology;
         if corners {
             let stem = format!("design{rank}");
-            for deck in report::spice::per_corner(t, &d.values, &input, &full.corners, &stem, &[]) {
+            for deck in report::spice::per_corner(
+                t,
+                &d.values,
+                &input,
+                &full.corners,
+                &stem,
+                note.as_slice(),
+            ) {
                 s.push_str(&deck.text);
                 s.push_str(&format!(
                     "* ==== end of {}: design {rank} ({}), device corner {}: {} ====\n",
@@ -294,7 +308,7 @@ fn design_spice(full: &Problem, outcome: &search::Outcome, corners: bool) -> Str
             s.push_str(&report::spice::netlist_to_spice(
                 &net,
                 &format!("gatewright design {rank} {}", t.id()),
-                &[],
+                note.as_slice(),
             ));
             s.push_str(&format!(
                 "* ==== end of design {rank} ({}), nominal device ====\n",

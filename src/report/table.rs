@@ -151,24 +151,30 @@ pub fn analysis(v: &AnalysisView, order: &[&str]) -> String {
     out
 }
 
+/// The banner line of every nominal-mode text output.
+pub(crate) fn nominal_banner() -> String {
+    format!(
+        "*** {}: {}\n",
+        crate::bench::summary::NOMINAL_ONLY.to_uppercase(),
+        crate::bench::summary::NOMINAL_ONLY_WHY
+    )
+}
+
 /// `design`: the ranked designs with their trade-offs, then the rejected
 /// topologies and the cautions.
 pub fn design(r: &DesignReport) -> String {
     let mut out = String::new();
-    if r.mode == "nominal" {
-        out.push_str(
-            "*** NOMINAL MODE: checked at the nominal device and nominal resistor values only.\n",
-        );
-        out.push_str("*** These designs are NOT guaranteed across the datasheet spread or resistor tolerances.\n");
+    if r.mode_note.is_some() {
+        out.push_str(&nominal_banner());
     }
     out.push_str(&format!(
-        "{} — {} values, {} check\n",
+        "{} — {} values, {}\n",
         super::printable(&r.name),
         super::printable(&r.series),
-        if r.mode == "nominal" {
-            "nominal"
+        if r.mode_note.is_some() {
+            crate::bench::summary::NOMINAL_ONLY
         } else {
-            "worst-case"
+            "worst-case check"
         }
     ));
     for c in &r.cautions {

@@ -155,12 +155,21 @@ fn caps_section(out: &mut String, plan: &CapPlan) {
 pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
     let d = &v.design;
     let mut out = String::new();
+    let nominal = v.nominal_only;
+    if nominal {
+        out.push_str(&super::table::nominal_banner());
+    }
     let title = format!(
-        "{} — design #{}: {} ({} values)",
+        "{} — design #{}: {} ({} values{})",
         super::printable(&v.name),
         d.rank,
         d.topology,
-        super::printable(&v.series)
+        super::printable(&v.series),
+        if nominal {
+            format!(", {}", crate::bench::summary::NOMINAL_ONLY)
+        } else {
+            String::new()
+        }
     );
     out.push_str(&title);
     out.push('\n');
@@ -240,7 +249,11 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
 
     heading(
         &mut out,
-        "Small-signal results (worst case over corners and tolerances)",
+        if nominal {
+            "Small-signal results (nominal only, not worst case)"
+        } else {
+            "Small-signal results (worst case over corners and tolerances)"
+        },
     );
     out.push_str(&format!(
         "gain from the source EMF, loaded: {} / {} / {} V/V (min / nominal / max)\n",
@@ -262,7 +275,14 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
         q(d.power_w, "W")
     ));
 
-    heading(&mut out, "Requirements and margins");
+    heading(
+        &mut out,
+        if nominal {
+            "Requirements and margins (nominal only, not worst case)"
+        } else {
+            "Requirements and margins"
+        },
+    );
     let mut t = table(vec![
         "requirement",
         "required",
@@ -282,6 +302,9 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
     out.push_str(&t.to_string());
     out.push('\n');
     out.push_str(&super::table::margin_note(&v.checks));
+    if nominal {
+        spread_section(&mut out, &v.spread_checks);
+    }
 
     heading(&mut out, "Capacitors");
     match &v.caps {
@@ -308,4 +331,35 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
         wrap(&mut out, c, "");
     }
     out
+}
+
+/// Nominal mode: what the design does over the device's whole spread
+/// (nominal resistor values, every supply extreme).
+fn spread_section(out: &mut String, checks: &[crate::analysis::Check]) {
+    heading(
+        out,
+        "Over the device's datasheet spread (nominal resistor values)",
+    );
+    let failing: Vec<String> = checks
+        .iter()
+        .filter(|c| !c.pass)
+        .map(|c| format!("{} (needs {}, reaches {})", c.name, c.required, c.achieved))
+        .collect();
+    if failing.is_empty() {
+        wrap(
+            out,
+            "Every requirement holds at every device corner with nominal resistors; resistor \
+             tolerances were not checked.",
+            "",
+        );
+    } else {
+        wrap(
+            out,
+            &format!(
+                "This design does NOT meet the specification across the spread: {}.",
+                failing.join("; ")
+            ),
+            "",
+        );
+    }
 }

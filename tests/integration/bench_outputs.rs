@@ -465,3 +465,102 @@ fn design_table_shows_the_supply_caution() {
     assert!(out.contains("licensed practice"), "{out}");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+// Issue 25, item 4: a nominal run says "nominal only, not worst case" in
+// every output, and its report shows what the spread does to the design
+// (on line-gain the nominal pick leaves the gain window at some device
+// corner: its own corner table shows it).
+#[test]
+fn nominal_mode_says_so_in_every_output() {
+    const SAYS: &str = "nominal only, not worst case";
+    let spec = example("line-gain");
+    let dir = fresh_dir("nominal");
+    let out = pick_out(&spec, &dir, &["--nominal"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let read = |f: &str| std::fs::read_to_string(dir.join(f)).unwrap();
+    let report = read("report.txt");
+    assert!(
+        report
+            .lines()
+            .next()
+            .unwrap()
+            .starts_with("*** NOMINAL ONLY, NOT WORST CASE:"),
+        "{report}"
+    );
+    assert!(report.contains("Requirements and margins (nominal only, not worst case)"));
+    assert!(report.contains("Small-signal results (nominal only, not worst case)"));
+    assert!(!report.contains("worst case over corners and tolerances"));
+    assert!(
+        report.contains("does NOT meet the specification across the spread: gain"),
+        "{report}"
+    );
+    // Every BOM row, read back by an independent CSV parser.
+    let bom = read("bom.csv");
+    let mut rows = csv::Reader::from_reader(bom.as_bytes());
+    let mut n = 0;
+    for r in rows.records() {
+        let r = r.unwrap();
+        assert!(r[6].starts_with(SAYS), "{r:?}");
+        n += 1;
+    }
+    assert!(n >= 4);
+    let deck = read("design.cir");
+    assert!(deck
+        .lines()
+        .nth(1)
+        .unwrap()
+        .starts_with(&format!("* {SAYS}:")));
+    for f in ["schematic.svg", "bias.svg", "response.svg"] {
+        assert!(read(f).contains(SAYS), "{f}");
+    }
+    // The table, the JSON and the SPICE output of the design command.
+    let path = spec.to_str().unwrap();
+    let table = gatewright(&["design", path, "--nominal", "--top", "1"]);
+    let text = String::from_utf8_lossy(&table.stdout);
+    assert!(
+        text.starts_with("*** NOMINAL ONLY, NOT WORST CASE:"),
+        "{text}"
+    );
+    assert!(text.lines().nth(1).unwrap().ends_with(SAYS), "{text}");
+    let json = gatewright(&[
+        "design",
+        path,
+        "--nominal",
+        "--top",
+        "1",
+        "--format",
+        "json",
+    ]);
+    let v: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
+    assert_eq!(v["mode"], "nominal");
+    assert!(v["mode_note"].as_str().unwrap().starts_with(SAYS));
+    let spice = gatewright(&[
+        "design",
+        path,
+        "--nominal",
+        "--top",
+        "1",
+        "--format",
+        "spice",
+    ]);
+    let deck = String::from_utf8_lossy(&spice.stdout);
+    assert!(deck
+        .lines()
+        .nth(1)
+        .unwrap()
+        .starts_with(&format!("* {SAYS}:")));
+    // A worst-case run says none of it.
+    let json = gatewright(&["design", path, "--top", "1", "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
+    assert_eq!(v["mode"], "worst-case");
+    assert!(v.get("mode_note").is_none());
+    let dir = fresh_dir("worst");
+    assert!(pick_out(&spec, &dir, &[]).status.success());
+    for f in FILES {
+        assert!(!read_in(&dir, f).contains(SAYS), "{f}");
+    }
+}
+
+fn read_in(dir: &Path, f: &str) -> String {
+    std::fs::read_to_string(dir.join(f)).unwrap()
+}

@@ -12,6 +12,8 @@ mod crosscheck;
 mod eseries;
 /// Fuzz corpora and regressions replayed through the parsers.
 mod fuzz_replay;
+/// The module layering of DEVELOPERS.md, read from the sources.
+mod layering;
 /// Exported decks run through ngspice and compared with the closed forms.
 mod ngspice;
 /// Schematic, bias window, frequency response and BOM outputs.

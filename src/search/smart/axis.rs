@@ -1,6 +1,8 @@
 //! The axes of the search box: each one's options in bound order, with
 //! the range tables that give a box's Zin extremes in a few steps.
 
+use crate::topology::{Gate, Rails, Topology};
+
 /// One axis of the box: the positions it sets and its options, sorted so
 /// that a higher index means a higher gate voltage (`gate_axis`) or a
 /// larger source resistance.
@@ -102,5 +104,15 @@ impl Axis {
     pub(super) fn zin_tilted(&self, s: usize, e: usize) -> Option<(f64, f64)> {
         let z = self.zin.as_ref()?;
         Some((z.up.range(s, e).0, z.down.range(s, e).1))
+    }
+}
+
+/// The gate voltage the divider in `v` (ohms, every position) sets at
+/// `rails`, volts: the order of the divider axis (0 V for a drain-fed
+/// gate, which no divider sets).
+pub(super) fn gate_voltage(t: &dyn Topology, v: &[f64], rails: &Rails) -> f64 {
+    match t.bias(v, rails).gate {
+        Gate::Fixed(x) => x,
+        Gate::FromDrain => 0.0,
     }
 }

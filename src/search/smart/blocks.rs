@@ -2,7 +2,11 @@
 //! resistors, the |gain| model of the drain resistor, the RD scan, the VDS
 //! fold grid and the source-resistor points.
 
-use super::*;
+use crate::analysis::{gain_window, SLACK};
+use crate::device::SquareLaw;
+use crate::rank::{Metrics, Scorer};
+use crate::search::Shelf;
+use crate::topology::Role;
 
 /// The smallest and the largest resistor tolerance on the shelf.
 pub(super) fn tolerance_span(shelf: &Shelf) -> (f64, f64) {
@@ -300,4 +304,61 @@ pub(super) fn add_lowest(lines: &mut Vec<(f64, f64)>, (a, b): (f64, f64)) {
     }
     lines.retain(|&(a2, b2)| !(a <= a2 && b >= b2));
     lines.push((a, b));
+}
+
+/// A lower bound, ohms, of the smallest resistance in `[lo, hi]` at which
+/// `reach` (false → true as the resistance rises) holds: `lo` when it holds
+/// there, else bisection in ln R for at most `steps` halvings or until the
+/// bracket is narrower than `width` (in ln R). The lower end is returned,
+/// so the answer never overshoots.
+pub(super) fn smallest_reaching(
+    lo: f64,
+    hi: f64,
+    steps: usize,
+    width: f64,
+    mut reach: impl FnMut(f64) -> bool,
+) -> f64 {
+    let (mut a, mut b) = (lo.ln(), hi.ln());
+    if reach(lo) {
+        return lo;
+    }
+    for _ in 0..steps {
+        if b - a < width {
+            break;
+        }
+        let m = 0.5 * (a + b);
+        if reach(m.exp()) {
+            b = m;
+        } else {
+            a = m;
+        }
+    }
+    a.exp()
+}
+
+/// First index in `0..n` where `pred` turns true (pred monotone false → true).
+pub(super) fn first_true(n: usize, mut pred: impl FnMut(usize) -> bool) -> usize {
+    let (mut lo, mut hi) = (0, n);
+    while lo < hi {
+        let mid = (lo + hi) / 2;
+        if pred(mid) {
+            hi = mid;
+        } else {
+            lo = mid + 1;
+        }
+    }
+    lo
+}
+
+/// The bound of one box.
+pub(super) struct Bound {
+    /// The score of optimistic metrics (no point of the box does better on
+    /// any of them): no point of the box scores higher.
+    pub(super) score: f64,
+    /// For a single configuration whose drain resistor was scanned: shelf
+    /// indices `[first, last)` of the drain resistors that can work.
+    pub(super) rd_window: Option<(usize, usize)>,
+    /// For a single configuration: the score bound of each drain resistor
+    /// in the window (empty otherwise).
+    pub(super) rd_scores: Vec<f64>,
 }

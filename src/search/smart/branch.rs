@@ -2,7 +2,12 @@
 //! halves and bounded in batches (with a helper thread where a core is
 //! free).
 
-use super::*;
+use crate::search::aid::{Crew, Spare};
+use crate::search::smart::axis::Axis;
+use crate::search::smart::blocks::{Bound, MAX_SOURCES};
+use crate::search::smart::bound::{Bounds, Scratch};
+use crate::search::smart::visit::{visit, visit_window};
+use crate::search::{Collector, Shelf};
 
 /// Most axes a box has: the divider, the source resistors and a gate
 /// resistor (no topology has all three; see the test).

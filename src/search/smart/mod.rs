@@ -37,16 +37,13 @@
 //!
 //! The exhaustive search is the proof: the property test compares them.
 
-use super::aid::{Crew, Spare};
-use super::exhaustive::choices;
-use super::{Collector, Shelf};
-use crate::analysis::{
-    all_pass, corners_only, gain_window, margins, quick, worst_case_of, Problem, WorstCase, SLACK,
-};
-use crate::device::SquareLaw;
-use crate::rank::{Metrics, Scorer};
-use crate::topology::{Gate, Rails, Role, SignalContext, Topology};
-use std::sync::{Arc, OnceLock};
+use crate::analysis::{Problem, SLACK};
+use crate::rank::Scorer;
+use crate::search::aid::Crew;
+use crate::search::exhaustive::choices;
+use crate::search::{Collector, Shelf};
+use crate::topology::Role;
+use std::sync::Arc;
 
 mod axis;
 mod blocks;
@@ -57,13 +54,13 @@ mod pairs;
 mod tests;
 mod visit;
 
-use axis::*;
-use blocks::*;
-use bound::*;
-use branch::*;
+use axis::{gate_voltage, Axis, Ranged, ZinTable};
+use blocks::{fold_points, par2, tolerance_span};
+use bound::{Bounds, Case, Scratch};
+use branch::{branch, Closing, Help, Node, MAX_AXES};
+use pairs::divider_pairs;
 pub(crate) use pairs::PairCache;
-use pairs::*;
-use visit::*;
+use visit::{diagnose, visit};
 
 /// Gate resistors that only set Zin: the smallest value whose worst case
 /// gives full Zin credit in the score (10 × zin_min), else the largest.
@@ -76,16 +73,6 @@ fn gate_choice(p: &Problem, shelf: &Shelf) -> f64 {
         .find(|(v, t)| *v * (1.0 - *t) >= want)
         .map(|(v, _)| *v)
         .unwrap_or(shelf.values[shelf.values.len() - 1])
-}
-
-/// The gate voltage the divider in `v` (ohms, every position) sets at
-/// `rails`, volts: the order of the divider axis (0 V for a drain-fed
-/// gate, which no divider sets).
-fn gate_voltage(t: &dyn Topology, v: &[f64], rails: &Rails) -> f64 {
-    match t.bias(v, rails).gate {
-        Gate::Fixed(x) => x,
-        Gate::FromDrain => 0.0,
-    }
 }
 
 /// Search one topology.

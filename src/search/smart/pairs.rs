@@ -1,7 +1,9 @@
 //! The divider pairs of a shelf: every (R_top, R_bottom), or the largest
 //! placement of each ratio, with a Zin floor; built once per search run.
 
-use super::*;
+use crate::analysis::SLACK;
+use crate::search::Shelf;
+use std::sync::{Arc, OnceLock};
 
 /// Divider pairs (R_top, R_bottom): all shelf pairs, or with `dominance`
 /// only the largest placement of each ratio. With `zin_floor` > 0 pairs

@@ -1,7 +1,12 @@
 //! Unit tests of the default search's pieces.
 
-use super::*;
-use crate::topology::TOPOLOGIES;
+use crate::analysis::SLACK;
+use crate::search::smart::blocks::{add_lowest, fold_points, source_point, FOLDS, MAX_SOURCES};
+use crate::search::smart::branch::MAX_AXES;
+use crate::search::smart::pairs::{divider_pairs, Packing, PairCache};
+use crate::search::Shelf;
+use crate::topology::{Role, TOPOLOGIES};
+use std::sync::Arc;
 
 // The box bound keeps source points in fixed arrays of MAX_SOURCES.
 #[test]

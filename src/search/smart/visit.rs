@@ -2,7 +2,14 @@
 //! checks, then the screens and the exact check of each candidate; and the
 //! closest-miss grid when no box survives.
 
-use super::*;
+use crate::analysis::{
+    all_pass, corners_only, gain_window, margins, quick, worst_case_of, Problem, WorstCase, SLACK,
+};
+use crate::rank::Metrics;
+use crate::search::smart::axis::{gate_voltage, Axis};
+use crate::search::smart::blocks::{first_true, optimistic, rd_ratio, shift, smallest_reaching};
+use crate::search::{Collector, Shelf};
+use crate::topology::{Role, SignalContext};
 
 /// The necessary checks at nominal values for a configuration whose last
 /// free part is RD: RD-independent ones, and the |gain| reachable with the
@@ -145,50 +152,6 @@ fn rd_level_a(col: &mut Collector<'_>, v: &mut [f64], rd: usize, shelf: &Shelf) 
         wc0.zin_min_ohm.max(wc1.zin_min_ohm) / p.spec.zin_min_ohm,
         parts,
     ))
-}
-
-/// A lower bound, ohms, of the smallest resistance in `[lo, hi]` at which
-/// `reach` (false → true as the resistance rises) holds: `lo` when it holds
-/// there, else bisection in ln R for at most `steps` halvings or until the
-/// bracket is narrower than `width` (in ln R). The lower end is returned,
-/// so the answer never overshoots.
-pub(super) fn smallest_reaching(
-    lo: f64,
-    hi: f64,
-    steps: usize,
-    width: f64,
-    mut reach: impl FnMut(f64) -> bool,
-) -> f64 {
-    let (mut a, mut b) = (lo.ln(), hi.ln());
-    if reach(lo) {
-        return lo;
-    }
-    for _ in 0..steps {
-        if b - a < width {
-            break;
-        }
-        let m = 0.5 * (a + b);
-        if reach(m.exp()) {
-            b = m;
-        } else {
-            a = m;
-        }
-    }
-    a.exp()
-}
-
-/// First index in `0..n` where `pred` turns true (pred monotone false → true).
-pub(super) fn first_true(n: usize, mut pred: impl FnMut(usize) -> bool) -> usize {
-    let (mut lo, mut hi) = (0, n);
-    while lo < hi {
-        let mid = (lo + hi) / 2;
-        if pred(mid) {
-            hi = mid;
-        } else {
-            lo = mid + 1;
-        }
-    }
-    lo
 }
 
 /// The run of shelf indices for the last free part (RD or RF) that passes

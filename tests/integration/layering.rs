@@ -13,7 +13,7 @@ use std::path::{Path, PathBuf};
 /// use modules of a lower or equal number). Within layer 3 the exact
 /// evaluation comes before the ranking, and both before the search that
 /// uses them.
-const LAYERS: [(&str, u32); 20] = [
+const LAYERS: [(&str, u32); 17] = [
     ("units", 0),
     ("catalog", 10),
     ("device", 10),
@@ -21,15 +21,12 @@ const LAYERS: [(&str, u32); 20] = [
     ("netlist", 10),
     ("topology", 20),
     ("verify", 20),
+    ("signal", 25),
     ("analysis", 30),
     ("requirement", 30),
     ("rank", 31),
     ("search", 32),
-    ("ratings", 40),
-    ("summary", 40),
-    ("caps", 40),
     ("bench", 40),
-    ("crosscheck", 40),
     ("report", 50),
     ("cli", 60),
     ("lib", 70),
@@ -41,15 +38,13 @@ const NEVER: [(&str, &str); 2] = [("verify", "topology"), ("topology", "verify")
 
 /// Modules whose functions compute physics or search: an exporter may
 /// name their types (views, results), never their functions.
-const COMPUTING: [&str; 9] = [
+const COMPUTING: [&str; 7] = [
     "analysis",
     "requirement",
     "search",
     "verify",
     "topology",
-    "caps",
-    "crosscheck",
-    "ratings",
+    "signal",
     "bench",
 ];
 
@@ -301,7 +296,7 @@ fn the_layering_checks_catch_planted_violations() {
     let v = violations(&planted(
         "report/text.rs",
         "report",
-        "use crate::analysis::Check;\nuse crate::ratings::with_unit;",
+        "use crate::analysis::Check;\nuse crate::bench::ratings::with_unit;",
     ));
     assert!(v.is_empty(), "{v:?}");
     let v = smart_violations(&planted(

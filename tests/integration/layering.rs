@@ -13,8 +13,9 @@ use std::path::{Path, PathBuf};
 /// use modules of a lower or equal number). Within layer 3 the exact
 /// evaluation comes before the ranking, and both before the search that
 /// uses them.
-const LAYERS: [(&str, u32); 17] = [
+const LAYERS: [(&str, u32); 18] = [
     ("units", 0),
+    ("lines", 0),
     ("catalog", 10),
     ("device", 10),
     ("spec", 10),

@@ -169,11 +169,21 @@ fn run_child(seed: u64, count: usize, index: usize, cap: f64) -> Run {
         .spawn()
         .expect("child");
     let start = Instant::now();
+    let mut peak_at_stop = 0u64;
     let status = loop {
         if let Some(s) = c.try_wait().expect("wait") {
             break Some(s);
         }
         if start.elapsed().as_secs_f64() > cap {
+            // Its high-water mark so far, before it is stopped.
+            peak_at_stop = std::fs::read_to_string(format!("/proc/{}/status", c.id()))
+                .ok()
+                .and_then(|s| {
+                    s.lines()
+                        .find(|l| l.starts_with("VmHWM:"))
+                        .and_then(|l| l.split_whitespace().nth(1)?.parse().ok())
+                })
+                .unwrap_or(0);
             let _ = c.kill();
             let _ = c.wait();
             break None;
@@ -196,9 +206,9 @@ fn run_child(seed: u64, count: usize, index: usize, cap: f64) -> Run {
         None => Run {
             index,
             seconds: f64::INFINITY,
-            peak_kb: 0,
+            peak_kb: peak_at_stop,
             line: if status.is_none() {
-                format!("over the cap of {cap} s")
+                format!("over the cap of {cap} s (peak {peak_at_stop} kB so far)")
             } else {
                 "over the memory cap or failed".to_string()
             },

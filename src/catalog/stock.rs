@@ -14,16 +14,20 @@
 //! ```
 //!
 //! Every part needs a tolerance, its own or the default. Values are sorted
-//! ascending. A value listed twice (equal within [`RELATIVE_SLACK`]) is an
-//! error rather than a silent merge, because the two entries may disagree on
-//! tolerance or rating. Parts are numbered from 1 in messages, in file order.
+//! ascending. A value listed more than once (equal within
+//! [`RELATIVE_SLACK`]), as a distributor's export lists one value at several
+//! tolerances and ratings, is kept once: the entry of the tightest
+//! tolerance (on a tie the highest rating, then the first in the file). Any
+//! design that the looser entries allow, the tightest allows too: its
+//! tolerance extremes lie inside theirs. Parts are numbered from 1 in
+//! messages, in file order.
 
 use serde::Deserialize;
 use toml::Spanned;
 
 use super::{Catalog, CatalogError, Part, RELATIVE_SLACK};
 use crate::lines::LineIndex;
-use crate::units::{format_value, parse_quantity, Quantity};
+use crate::units::{parse_quantity, Quantity};
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -135,7 +139,7 @@ impl Reader<'_> {
 /// Errors name the field, the value as written, the rule and the line: a
 /// TOML syntax error, an unknown key, no `[[part]]` at all, a value that is
 /// not a finite resistance above 0 ohms, a tolerance outside `[0, 1)` or
-/// missing, a power rating not above 0 watts, or a value listed twice.
+/// missing, or a power rating not above 0 watts.
 pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
     let lines = LineIndex::new(text);
     let raw: RawStock = toml::from_str(text).map_err(|e| {
@@ -177,9 +181,7 @@ pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
         });
     }
 
-    // (part, file number from 1, line of its value, the value as written)
-    let mut parts: Vec<(Part, usize, usize, &Spanned<toml::Value>)> =
-        Vec::with_capacity(raw_parts.len());
+    let mut parts: Vec<Part> = Vec::with_capacity(raw_parts.len());
     for (i, p) in raw_parts.iter().enumerate() {
         let n = i + 1;
         let ohms = r.positive(
@@ -204,42 +206,50 @@ pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
             }
             None => default_power,
         };
-        let part = Part {
+        parts.push(Part {
             ohms,
             tolerance,
             power_w,
-        };
-        parts.push((part, n, r.line(p.value.span().start), &p.value));
+        });
     }
+    drop(raw_parts);
 
-    // Stable sort keeps file order among equal values, so the later entry
-    // of a pair is the one reported.
-    parts.sort_by(|a, b| a.0.ohms.total_cmp(&b.0.ohms));
-    for w in parts.windows(2) {
-        let (first, second) = (&w[0], &w[1]);
-        if second.0.ohms <= first.0.ohms * (1.0 + RELATIVE_SLACK) {
-            let (earlier, later) = if first.1 < second.1 {
-                (first, second)
-            } else {
-                (second, first)
-            };
-            return Err(r.error(
-                &format!("part[{}].value", later.1),
-                later.3,
-                &format!(
-                    "repeats part[{}] on line {} ({} ohms); list each value once",
-                    earlier.1,
-                    earlier.2,
-                    format_value(earlier.0.ohms)
-                ),
-            ));
-        }
-    }
-
+    // Stable sort: equal values keep file order, so a tie between entries
+    // goes to the first listed.
+    parts.sort_by(|a, b| a.ohms.total_cmp(&b.ohms));
     Ok(Catalog {
         name,
-        parts: parts.into_iter().map(|(p, ..)| p).collect(),
+        parts: merge_repeats(parts),
     })
+}
+
+/// One part per value of `sorted` (ascending by resistance): of the
+/// entries equal within [`RELATIVE_SLACK`] of a run's first, the tightest
+/// tolerance, then the highest rating (none counts lowest), then the first.
+fn merge_repeats(sorted: Vec<Part>) -> Vec<Part> {
+    let better = |a: &Part, b: &Part| {
+        a.tolerance < b.tolerance
+            || (a.tolerance == b.tolerance && a.power_w.unwrap_or(0.0) > b.power_w.unwrap_or(0.0))
+    };
+    let mut out: Vec<Part> = Vec::with_capacity(sorted.len());
+    let mut run_start = f64::NAN;
+    for p in sorted {
+        match out.last_mut() {
+            Some(last) if p.ohms <= run_start * (1.0 + RELATIVE_SLACK) => {
+                if better(&p, last) {
+                    *last = Part {
+                        ohms: last.ohms,
+                        ..p
+                    };
+                }
+            }
+            _ => {
+                run_start = p.ohms;
+                out.push(p);
+            }
+        }
+    }
+    out
 }
 
 #[cfg(test)]
@@ -376,12 +386,20 @@ mod tests {
     }
 
     #[test]
-    fn rejects_duplicate_values_naming_both_lines() {
-        let text = "tolerance = 0.05\n[[part]]\nvalue = \"4k7\"\n[[part]]\nvalue = 1000\n\
-                    [[part]]\nvalue = 4700\n";
-        assert_eq!(
-            err(text),
-            "line 7: `part[3].value` = 4700: repeats part[1] on line 3 (4.7k ohms); list each value once"
-        );
+    fn repeated_values_keep_the_tightest_tolerance_then_the_highest_rating() {
+        let text = "tolerance = 0.05\n\
+                    [[part]]\nvalue = \"4k7\"\n\
+                    [[part]]\nvalue = 1000\n\
+                    [[part]]\nvalue = 4700\ntolerance = 0.01\npower = 0.25\n\
+                    [[part]]\nvalue = 4.7e3\ntolerance = 0.01\npower = 0.5\n\
+                    [[part]]\nvalue = \"4.7k\"\ntolerance = 0.01\npower = 0.5\n\
+                    [[part]]\nvalue = 1000.0000001\ntolerance = 0.1\n";
+        let got: Vec<(f64, f64, Option<f64>)> = parse(text)
+            .unwrap()
+            .parts
+            .iter()
+            .map(|p| (p.ohms, p.tolerance, p.power_w))
+            .collect();
+        assert_eq!(got, [(1000.0, 0.05, None), (4700.0, 0.01, Some(0.5))]);
     }
 }

@@ -58,6 +58,56 @@ impl Shelf {
         }
     }
 
+    /// The shelf without the values the default search never needs: a
+    /// value whose tolerance band `[v(1 − t), v(1 + t)]` contains the band
+    /// of another value. Every quantity the worst case takes is monotone in
+    /// each resistor, so its extremes over the narrower band lie inside
+    /// those over the wider one: a design with the other value is feasible
+    /// wherever one with this value is, and scores at least as well. On an
+    /// E-series shelf (one tolerance) no band contains another and nothing
+    /// is left out; a stock list that holds values at several tolerances
+    /// loses its looser parts wherever a tighter one lies inside their
+    /// band. The exhaustive search takes the whole shelf, so the property
+    /// test checks the rule.
+    pub fn reduced(&self) -> Shelf {
+        let n = self.values.len();
+        let band = |i: usize| {
+            let (v, t) = (self.values[i], self.tolerances[i]);
+            (v * (1.0 - t), v * (1.0 + t))
+        };
+        // From the highest band floor down (on a tie the lower ceiling
+        // first): a band contains an earlier one exactly when the least
+        // ceiling so far is at most its own.
+        let mut order: Vec<usize> = (0..n).collect();
+        order.sort_by(|&i, &j| {
+            let (a, b) = (band(i), band(j));
+            b.0.total_cmp(&a.0)
+                .then(a.1.total_cmp(&b.1))
+                .then(i.cmp(&j))
+        });
+        let mut keep = vec![true; n];
+        let mut least_ceiling = f64::INFINITY;
+        for i in order {
+            let (_, hi) = band(i);
+            if least_ceiling <= hi {
+                keep[i] = false;
+            }
+            least_ceiling = least_ceiling.min(hi);
+        }
+        let pick = |x: &[f64]| -> Vec<f64> {
+            x.iter()
+                .zip(&keep)
+                .filter(|(_, &k)| k)
+                .map(|(v, _)| *v)
+                .collect()
+        };
+        Shelf {
+            name: self.name.clone(),
+            values: pick(&self.values),
+            tolerances: pick(&self.tolerances),
+        }
+    }
+
     /// Tolerance of each of `values` (see [`Shelf::tolerance_of`]).
     pub fn tolerances_for(&self, values: &[f64]) -> Vec<f64> {
         values.iter().map(|&x| self.tolerance_of(x)).collect()
@@ -671,17 +721,19 @@ pub fn run_with_progress(
         });
     }
     let p = problem_for(spec, opts.nominal_only);
+    let mut effort = Effort {
+        exhaustive_combinations: exhaustive::combinations(&p, shelf),
+        ..Effort::default()
+    };
     let shelf = if opts.nominal_only {
         Shelf {
             tolerances: vec![0.0; shelf.values.len()],
             ..shelf.clone()
         }
+    } else if opts.method == Method::Smart {
+        shelf.reduced()
     } else {
         shelf.clone()
-    };
-    let mut effort = Effort {
-        exhaustive_combinations: exhaustive::combinations(&p, &shelf),
-        ..Effort::default()
     };
     if opts.method == Method::Exhaustive {
         let evaluations = exhaustive::corner_evaluations(&p, &shelf);
@@ -738,6 +790,64 @@ pub fn run_with_progress(
 mod tests {
     use super::*;
     use crate::catalog::ESeries;
+
+    /// A band that contains another's is left out, and only such bands:
+    /// against every pair compared directly.
+    #[test]
+    fn the_reduced_shelf_drops_exactly_the_bands_that_contain_another() {
+        let values = [100.0, 101.0, 102.0, 110.0, 120.0, 120.5, 150.0, 1000.0];
+        let tolerances = [0.05, 0.001, 0.05, 0.0, 0.1, 0.01, 0.1, 0.1];
+        let shelf = Shelf {
+            name: "t".to_string(),
+            values: values.to_vec(),
+            tolerances: tolerances.to_vec(),
+        };
+        let r = shelf.reduced();
+        // 100 ±5 % and 102 ±5 % hold 101 ±0.1 %; 120 ±10 % holds 110 and
+        // 120.5 ±1 %; 150 ±10 % holds nothing (its floor is 135).
+        assert_eq!(r.values, [101.0, 110.0, 120.5, 150.0, 1000.0]);
+        assert_eq!(r.tolerances, [0.001, 0.0, 0.01, 0.1, 0.1]);
+        // Pseudo-random shelves against the definition.
+        let mut x = 12345u64;
+        let mut next = || {
+            x = x
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (x >> 11) as f64 / (1u64 << 53) as f64
+        };
+        for _ in 0..200 {
+            let mut values: Vec<f64> = (0..40).map(|_| 100.0 * (1.0 + next())).collect();
+            values.sort_by(f64::total_cmp);
+            values.dedup();
+            let tolerances: Vec<f64> = values
+                .iter()
+                .map(|_| [0.0, 0.001, 0.01, 0.05, 0.1][(next() * 5.0) as usize])
+                .collect();
+            let shelf = Shelf {
+                name: "t".to_string(),
+                values: values.clone(),
+                tolerances: tolerances.clone(),
+            };
+            let band = |i: usize| {
+                (
+                    values[i] * (1.0 - tolerances[i]),
+                    values[i] * (1.0 + tolerances[i]),
+                )
+            };
+            let want: Vec<f64> = (0..values.len())
+                .filter(|&i| {
+                    !(0..values.len())
+                        .any(|j| j != i && band(i).0 <= band(j).0 && band(j).1 <= band(i).1)
+                })
+                .map(|i| values[i])
+                .collect();
+            assert_eq!(shelf.reduced().values, want);
+        }
+        // One tolerance: nothing is left out.
+        let cat = Catalog::from_series(ESeries::E192, None, 10.0, 10e6).unwrap();
+        let e192 = Shelf::new(&cat, None, 10.0, 10e6);
+        assert_eq!(e192.reduced(), e192);
+    }
 
     // A helper thread changes the time only (see `aid`): one topology's
     // long search gives the same designs, scores and work counts with a

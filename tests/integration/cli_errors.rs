@@ -358,12 +358,6 @@ fn spec_cases() -> Vec<Case> {
             want: "in stock list `DIR/stock.toml`: line 3: `part[1].value` = \"-4k7\": must be a finite number greater than 0 ohms",
         },
         Case {
-            what: "stock: value twice",
-            spec: Spec::Text(with("series = \"E24\"", "series = \"stock.toml\"")),
-            files: &[("stock.toml", "tolerance = 0.05\n[[part]]\nvalue = \"1k\"\n[[part]]\nvalue = 1000\n")],
-            want: "in stock list `DIR/stock.toml`: line 5: `part[2].value` = 1000: repeats part[1] on line 3 (1k ohms); list each value once",
-        },
-        Case {
             what: "stock: syntax error",
             spec: Spec::Text(with("series = \"E24\"", "series = \"stock.toml\"")),
             files: &[("stock.toml", "[[part]\nvalue = 1\n")],

@@ -290,6 +290,95 @@ fn exhaustive_top_n_is_the_best_n_of_the_whole_pareto_front() {
                 prop_assert_eq!(d.topology_index, f.0);
                 prop_assert_eq!(&d.values, &f.1);
                 prop_assert!((d.score - f.3).abs() <= 1e-12);
+
+/// A stock shelf over the case's decade: E12 values at mixed tolerances,
+/// with tighter parts inside the bands of some looser ones (the default
+/// search leaves the looser out: `Shelf::reduced`).
+fn mixed_stock_shelf(spec: &ValidSpec, tols: &[usize], extra: &[(usize, usize)]) -> Shelf {
+    let base = shelf(spec);
+    let mut parts: Vec<(f64, f64)> = base
+        .values
+        .iter()
+        .zip(tols.iter().cycle())
+        .map(|(&v, &k)| (v, [0.0, 0.01, 0.05, 0.1][k]))
+        .collect();
+    // A tighter part 2 % or 4 % above a value, inside a ±5 % or ±10 % band.
+    for &(at, step) in extra {
+        let v = base.values[at % base.values.len()] * [1.02, 1.04][step];
+        if v <= spec.parts.r_max_ohm {
+            parts.push((v, 0.005));
+        }
+    }
+    parts.sort_by(|a, b| a.0.total_cmp(&b.0));
+    parts.dedup_by(|a, b| a.0 == b.0);
+    Shelf {
+        name: "mixed".to_string(),
+        values: parts.iter().map(|p| p.0).collect(),
+        tolerances: parts.iter().map(|p| p.1).collect(),
+    }
+}
+
+/// The default search on a reduced stock shelf against the exhaustive
+/// search on the whole shelf: leaving out the values whose tolerance band
+/// contains another's loses no design that could rank first.
+#[test]
+fn reduced_stock_shelves_match_exhaustive_best_score() {
+    let cases: u32 = std::env::var("GATEWRIGHT_SEARCH_CASES")
+        .ok()
+        .and_then(|s| s.parse().ok())
+        .map_or(80, |n: u32| (n / 4).max(1));
+    let mut runner = TestRunner::new(Config {
+        cases,
+        failure_persistence: None,
+        ..Config::default()
+    });
+    let reduced_some = std::cell::Cell::new(0u32);
+    let feasible = std::cell::Cell::new(0u32);
+    let strategy = (
+        case(),
+        proptest::collection::vec(0usize..4, 13),
+        proptest::collection::vec((0usize..13, 0usize..2), 0..6),
+    );
+    runner
+        .run(&strategy, |(c, tols, extra)| {
+            let mut spec = c.spec;
+            spec.parts.tolerance = None;
+            let shelf = mixed_stock_shelf(&spec, &tols, &extra);
+            if shelf.reduced().values.len() < shelf.values.len() {
+                reduced_some.set(reduced_some.get() + 1);
+            }
+            let opts = Options {
+                top: 3,
+                per_topology: 3,
+                ..Options::default()
+            };
+            let fast = search::run(&spec, &shelf, &opts).expect("search");
+            let slow = search::run(
+                &spec,
+                &shelf,
+                &Options {
+                    method: Method::Exhaustive,
+                    ..opts
+                },
+            )
+            .expect("exhaustive");
+            let best = |o: &search::Outcome| o.designs.first().map(|d| d.score);
+            match (best(&fast), best(&slow)) {
+                (Some(a), Some(b)) => {
+                    feasible.set(feasible.get() + 1);
+                    prop_assert!(
+                        (a - b).abs() <= 1e-12,
+                        "best score: reduced {a} ({:?}) exhaustive {b} ({:?})",
+                        fast.designs[0],
+                        slow.designs[0]
+                    );
+                }
+                (a, b) => prop_assert!(
+                    a.is_none() && b.is_none(),
+                    "feasibility differs: reduced {:?} exhaustive {:?}",
+                    fast.designs.first(),
+                    slow.designs.first()
+                ),
             }
             Ok(())
         })
@@ -303,4 +392,11 @@ fn exhaustive_top_n_is_the_best_n_of_the_whole_pareto_front() {
         "too few cases with a front ({})",
         fronts.get()
     );
+
+        "reduced stock shelves: {cases} specifications, {} shelves reduced, {} feasible",
+        reduced_some.get(),
+        feasible.get()
+    );
+    assert!(reduced_some.get() >= cases / 2, "too few shelves reduced");
+    assert!(feasible.get() >= cases / 10, "too few feasible cases");
 }

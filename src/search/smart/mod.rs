@@ -107,7 +107,11 @@ pub(crate) fn search(col: &mut Collector<'_>, shelf: &Shelf) {
         } else {
             0.0
         };
-        let dominance = !(zin_from_divider && rsig > 0.0);
+        // The largest placement of a ratio dominates the others only where
+        // its parts are no looser: on a shelf of one tolerance (a stock
+        // list of several keeps every pair).
+        let one_tolerance = t_min == t_max;
+        let dominance = !(zin_from_divider && rsig > 0.0) && one_tolerance;
         let list = match col.pairs {
             Some(cache) => cache.pairs(shelf, floor, dominance),
             None => Arc::new(divider_pairs(shelf, floor, dominance)),

@@ -46,15 +46,32 @@ struct RawPart {
     power: Option<Spanned<toml::Value>>,
 }
 
-/// Reads fields against the source text so errors quote it and give lines.
-struct Reader<'a> {
-    text: &'a str,
-    lines: LineIndex<'a>,
+/// One `[[part]]` table read on its own (see [`by_part`]).
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct OnePart {
+    part: Vec<RawPart>,
 }
 
-impl Reader<'_> {
+/// Reads fields against the source text so errors quote it and give lines
+/// (the line index is built on the first error).
+struct Reader<'a> {
+    text: &'a str,
+    lines: std::cell::OnceCell<LineIndex<'a>>,
+}
+
+impl<'a> Reader<'a> {
+    fn new(text: &'a str) -> Self {
+        Reader {
+            text,
+            lines: std::cell::OnceCell::new(),
+        }
+    }
+
     fn line(&self, at: usize) -> usize {
-        self.lines.line(at)
+        self.lines
+            .get_or_init(|| LineIndex::new(self.text))
+            .line(at)
     }
 
     fn error<T>(&self, field: &str, raw: &Spanned<T>, rule: &str) -> CatalogError {
@@ -141,6 +158,72 @@ impl Reader<'_> {
 /// not a finite resistance above 0 ohms, a tolerance outside `[0, 1)` or
 /// missing, or a power rating not above 0 watts.
 pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
+    match by_part(text) {
+        Some(c) => Ok(c),
+        None => whole(text),
+    }
+}
+
+/// The stock list read one `[[part]]` table at a time, for long lists: a
+/// TOML document tree of a million parts takes over a gigabyte, one part's
+/// a few hundred bytes. The text is cut before every line that is a
+/// `[[part]]` header; the part before the first is the top-level table.
+/// `None` when any piece does not read as exactly that (a header inside a
+/// multi-line string leaves a piece with an unterminated string, a
+/// sub-table or another header an unknown key, a bad value its error):
+/// the whole document is read then, which gives the same catalog where
+/// this one succeeds and the error, with its line, where it fails.
+fn by_part(text: &str) -> Option<Catalog> {
+    let starts = part_headers(text);
+    let first = *starts.first()?;
+    let top = text.get(..first)?;
+    let head: RawStock = toml::from_str(top).ok()?;
+    if head.part.is_some() {
+        return None;
+    }
+    let (name, default_tol, default_power) = top_level(&Reader::new(top), &head).ok()?;
+    let mut parts: Vec<Part> = Vec::with_capacity(starts.len());
+    for (i, &at) in starts.iter().enumerate() {
+        let end = starts.get(i + 1).copied().unwrap_or(text.len());
+        let piece = text.get(at..end)?;
+        let one: OnePart = toml::from_str(piece).ok()?;
+        let [raw] = one.part.as_slice() else {
+            return None;
+        };
+        let r = Reader::new(piece);
+        parts.push(part(&r, i + 1, raw, default_tol, default_power).ok()?);
+    }
+    Some(finish(name, parts))
+}
+
+/// Byte offsets of the lines that are a `[[part]]` header (spaces inside
+/// the brackets, a quoted key and a comment after it allowed).
+fn part_headers(text: &str) -> Vec<usize> {
+    let mut out = Vec::new();
+    let mut at = 0;
+    for line in text.split_inclusive('\n') {
+        if is_part_header(line) {
+            out.push(at);
+        }
+        at += line.len();
+    }
+    out
+}
+
+fn is_part_header(line: &str) -> bool {
+    let Some(rest) = line.trim_start().strip_prefix("[[") else {
+        return false;
+    };
+    let Some((key, after)) = rest.split_once("]]") else {
+        return false;
+    };
+    let after = after.trim_start();
+    matches!(key.trim(), "part" | "\"part\"" | "'part'")
+        && (after.is_empty() || after.starts_with('#'))
+}
+
+/// The stock list read as one TOML document.
+fn whole(text: &str) -> Result<Catalog, CatalogError> {
     let lines = LineIndex::new(text);
     let raw: RawStock = toml::from_str(text).map_err(|e| {
         let (line, column) = e.span().map_or((1, 1), |s| lines.line_col(s.start));
@@ -151,8 +234,32 @@ pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
             message: e.message().trim().replace('\n', "; "),
         }
     })?;
-    let r = Reader { text, lines };
+    let r = Reader {
+        text,
+        lines: std::cell::OnceCell::from(lines),
+    };
+    let (name, default_tol, default_power) = top_level(&r, &raw)?;
+    let raw_parts = raw.part.as_deref().unwrap_or_default();
+    if raw_parts.is_empty() {
+        return Err(CatalogError::Invalid {
+            field: "part".to_string(),
+            value: "(none)".to_string(),
+            rule: "a stock list needs at least one [[part]] with a `value`".to_string(),
+            line: None,
+        });
+    }
+    let mut parts: Vec<Part> = Vec::with_capacity(raw_parts.len());
+    for (i, p) in raw_parts.iter().enumerate() {
+        parts.push(part(&r, i + 1, p, default_tol, default_power)?);
+    }
+    Ok(finish(name, parts))
+}
 
+/// The list's name, default tolerance and default power rating (watts).
+fn top_level(
+    r: &Reader<'_>,
+    raw: &RawStock,
+) -> Result<(String, Option<f64>, Option<f64>), CatalogError> {
     let name = match &raw.name {
         None => "stock".to_string(),
         Some(n) if n.get_ref().trim().is_empty() => {
@@ -170,57 +277,52 @@ pub fn parse(text: &str) -> Result<Catalog, CatalogError> {
         .as_ref()
         .map(|p| r.positive("power", p, Quantity::Power, "watts"))
         .transpose()?;
+    Ok((name, default_tol, default_power))
+}
 
-    let raw_parts = raw.part.unwrap_or_default();
-    if raw_parts.is_empty() {
-        return Err(CatalogError::Invalid {
-            field: "part".to_string(),
-            value: "(none)".to_string(),
-            rule: "a stock list needs at least one [[part]] with a `value`".to_string(),
-            line: None,
-        });
-    }
+/// Part `n` (from 1, in file order), checked.
+fn part(
+    r: &Reader<'_>,
+    n: usize,
+    p: &RawPart,
+    default_tol: Option<f64>,
+    default_power: Option<f64>,
+) -> Result<Part, CatalogError> {
+    let ohms = r.positive(
+        &format!("part[{n}].value"),
+        &p.value,
+        Quantity::Resistance,
+        "ohms",
+    )?;
+    let tolerance = match &p.tolerance {
+        Some(t) => r.tolerance(&format!("part[{n}].tolerance"), t)?,
+        None => default_tol.ok_or_else(|| CatalogError::Invalid {
+            field: format!("part[{n}].tolerance"),
+            value: "(missing)".to_string(),
+            rule: "give the part a `tolerance` or set a top-level `tolerance` default".to_string(),
+            line: Some(r.line(p.value.span().start)),
+        })?,
+    };
+    let power_w = match &p.power {
+        Some(w) => Some(r.positive(&format!("part[{n}].power"), w, Quantity::Power, "watts")?),
+        None => default_power,
+    };
+    Ok(Part {
+        ohms,
+        tolerance,
+        power_w,
+    })
+}
 
-    let mut parts: Vec<Part> = Vec::with_capacity(raw_parts.len());
-    for (i, p) in raw_parts.iter().enumerate() {
-        let n = i + 1;
-        let ohms = r.positive(
-            &format!("part[{n}].value"),
-            &p.value,
-            Quantity::Resistance,
-            "ohms",
-        )?;
-        let tolerance = match &p.tolerance {
-            Some(t) => r.tolerance(&format!("part[{n}].tolerance"), t)?,
-            None => default_tol.ok_or_else(|| CatalogError::Invalid {
-                field: format!("part[{n}].tolerance"),
-                value: "(missing)".to_string(),
-                rule: "give the part a `tolerance` or set a top-level `tolerance` default"
-                    .to_string(),
-                line: Some(r.line(p.value.span().start)),
-            })?,
-        };
-        let power_w = match &p.power {
-            Some(w) => {
-                Some(r.positive(&format!("part[{n}].power"), w, Quantity::Power, "watts")?)
-            }
-            None => default_power,
-        };
-        parts.push(Part {
-            ohms,
-            tolerance,
-            power_w,
-        });
-    }
-    drop(raw_parts);
-
-    // Stable sort: equal values keep file order, so a tie between entries
-    // goes to the first listed.
+/// The catalog of `parts`: sorted ascending (a stable sort, so equal
+/// values keep file order and a tie between entries goes to the first
+/// listed), one part per value.
+fn finish(name: String, mut parts: Vec<Part>) -> Catalog {
     parts.sort_by(|a, b| a.ohms.total_cmp(&b.ohms));
-    Ok(Catalog {
+    Catalog {
         name,
         parts: merge_repeats(parts),
-    })
+    }
 }
 
 /// One part per value of `sorted` (ascending by resistance): of the
@@ -383,6 +485,38 @@ mod tests {
             err("name = \"  \"\n[[part]]\nvalue = 1\ntolerance = 0\n"),
             "line 1: `name` = \"  \": must not be empty"
         );
+    }
+
+    /// Reading part by part gives the whole document's catalog, or gives
+    /// up (and the whole document is read) wherever the cut could change
+    /// the meaning.
+    #[test]
+    fn reading_part_by_part_agrees_with_the_whole_document() {
+        let same = [
+            "name = \"d\"\ntolerance = 0.05\n[[part]]\nvalue = \"4k7\"\n[[part]]\nvalue = 100\ntolerance = 0.01\n",
+            "tolerance = 0.05 # default\n  [[ part ]] # first\r\nvalue = 10\r\n[[\"part\"]]\nvalue = 20\n[['part']]\nvalue = 20\ntolerance = 0\n",
+            "[[part]]\nvalue = 1\ntolerance = 0.1\npower = \"250m\"\n",
+        ];
+        for text in same {
+            let piecewise = by_part(text).expect("read part by part");
+            assert_eq!(Ok(piecewise), whole(text), "{text:?}");
+        }
+        let whole_only = [
+            // A header line inside a multi-line string.
+            "name = \"\"\"a\n[[part]]\nvalue = 1\n\"\"\"\ntolerance = 0.1\n[[part]]\nvalue = 2\n",
+            // A sub-table, another table, an unknown key, a bad value.
+            "tolerance = 0.1\n[[part]]\nvalue = 1\n[part.extra]\nx = 1\n",
+            "tolerance = 0.1\n[[part]]\nvalue = 1\n[other]\nx = 1\n",
+            "tolerance = 0.1\n[[part]]\nvalue = 1\nwatts = 2\n",
+            "tolerance = 0.1\n[[part]]\nvalue = -1\n",
+            "part = [{ value = 1, tolerance = 0.1 }]\n[[part]]\nvalue = 2\n",
+            "tolerance = 0.1\n",
+        ];
+        for text in whole_only {
+            assert_eq!(by_part(text), None, "{text:?}");
+        }
+        // The first parses whole (the header is text of the name).
+        assert_eq!(parse(whole_only[0]).unwrap().parts.len(), 1);
     }
 
     #[test]

@@ -352,6 +352,22 @@ pub fn format_value(v: f64) -> String {
     format_sig(v, 3)
 }
 
+/// `15 mW`, `158 V`, `4.7 kΩ`: three significant figures, a space, the SI
+/// prefix joined to the unit.
+///
+/// ```
+/// use gatewright::units::with_unit;
+/// assert_eq!(with_unit(0.015, "W"), "15 mW");
+/// assert_eq!(with_unit(4700.0, "Ω"), "4.7 kΩ");
+/// ```
+pub fn with_unit(x: f64, unit: &str) -> String {
+    let text = format_sig(x, 3);
+    match text.char_indices().last() {
+        Some((i, c)) if c.is_ascii_alphabetic() => format!("{} {c}{unit}", &text[..i]),
+        _ => format!("{text} {unit}"),
+    }
+}
+
 /// As [`format_value`] with `sig` significant figures (1 to 9).
 pub fn format_sig(v: f64, sig: usize) -> String {
     if !v.is_finite() {

@@ -46,6 +46,11 @@ use crate::verify::{self, LowCorner, SolveError};
 use serde::Serialize;
 use std::f64::consts::PI;
 
+/// The corner capacitors are sized for when the specification gives no
+/// `[band] f_low`, hertz: the low edge of the audio band, 20 Hz (common
+/// practice). Every output that uses it says so.
+pub const DEFAULT_F_LOW_HZ: f64 = 20.0;
+
 /// How far below `f_low` each non-dominant (coupling) pole sits,
 /// dimensionless: a decade (REFERENCE §5, "a decade below" in simple
 /// practice).
@@ -173,6 +178,13 @@ pub struct CapPlan {
     pub rule: String,
 }
 
+impl SizedCap {
+    /// What it does, in words: `input coupling`, `source bypass`.
+    pub fn role_words(&self) -> &'static str {
+        role_words(self.role)
+    }
+}
+
 impl CapPlan {
     /// The values as a [`Caps`] for a netlist, farads (absent roles keep the
     /// mid-band placeholder, which the topology does not use).
@@ -186,6 +198,16 @@ impl CapPlan {
             .iter()
             .map(|c| (c.designator.clone(), c.farads))
             .collect()
+    }
+}
+
+/// What a capacitor does, in words: `input coupling`, `source bypass`.
+pub fn role_words(r: CapRole) -> &'static str {
+    match r {
+        CapRole::InputCoupling => "input coupling",
+        CapRole::OutputCoupling => "output coupling",
+        CapRole::SourceBypass => "source bypass",
+        CapRole::GateBypass => "gate bypass",
     }
 }
 
@@ -486,7 +508,7 @@ fn rule_text(
     dominant: Option<usize>,
     rounds: usize,
 ) -> String {
-    use crate::bench::ratings::with_unit;
+    use crate::units::with_unit;
     let dom = dominant
         .and_then(|i| caps.get(i))
         .map_or("none".to_string(), |c| c.designator.clone());

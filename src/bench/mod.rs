@@ -10,9 +10,13 @@
 //!
 //! This stage computes; it prints nothing and writes no file.
 
+pub mod bias;
+pub mod bom;
 pub mod caps;
 pub mod crosscheck;
+pub mod deck;
 pub mod ratings;
+pub mod response;
 pub mod summary;
 pub mod view;
 

@@ -12,7 +12,7 @@
 use crate::analysis::{point, tolerance_extremes, Problem, WorstCase};
 use crate::device::Family;
 use crate::topology::Topology;
-use crate::units::format_sig;
+use crate::units::with_unit;
 
 /// Standard resistor power ratings, watts, ascending: SMD 0402 1/16 W,
 /// 0603 1/10 W, 0805 1/8 W, 1206 1/4 W; through-hole 1/8 to 2 W; 5 W power
@@ -124,8 +124,9 @@ pub fn typical_max_working_v(rating_w: f64) -> Option<f64> {
         .map(|(_, v)| *v)
 }
 
-/// The rating to buy for one resistor and whether its voltage is within
-/// the derated working voltage.
+/// The power-limited rating of one resistor (the smallest standard rating
+/// for its dissipation) and whether its voltage is within the derated
+/// working voltage of that rating.
 pub fn rate(d: &ResistorDuty) -> ResistorRating {
     let rating_w = rating_for(d.p_worst_w);
     let power_limited_v = rating_w.map(|r| power_limited_voltage_v(r, d.ohms));
@@ -142,19 +143,55 @@ pub fn rate(d: &ResistorDuty) -> ResistorRating {
     }
 }
 
-/// A power rating in the words a buyer uses: `1/16 W`, `1/4 W`, `2 W`.
-pub fn rating_text(rating_w: f64) -> String {
-    const FRACTIONS: [(f64, &str); 5] = [
-        (0.0625, "1/16 W"),
-        (0.1, "1/10 W"),
-        (0.125, "1/8 W"),
-        (0.25, "1/4 W"),
-        (0.5, "1/2 W"),
+/// The working-voltage limit of a resistor of a standard rating, volts: the
+/// lower of the power-limited `sqrt(P·R)` and the typical maximum working
+/// voltage of parts of that rating (REFERENCE §6).
+pub fn voltage_limit_v(rating_w: f64, ohms: f64) -> f64 {
+    let e = power_limited_voltage_v(rating_w, ohms);
+    typical_max_working_v(rating_w).map_or(e, |m| m.min(e))
+}
+
+/// The rating to buy for one resistor: the smallest standard rating whose
+/// derated power and derated working voltage both hold (a high voltage on a
+/// small dissipation needs a larger part). When none does, the power-limited
+/// rating with `voltage_ok` false (see [`rate`]).
+pub fn rate_to_buy(d: &ResistorDuty) -> ResistorRating {
+    let first = rate(d);
+    let Some(from) = first.rating_w else {
+        return first;
+    };
+    STANDARD_RATINGS_W
+        .iter()
+        .filter(|&&r| r >= from)
+        .map(|&r| ResistorRating {
+            rating_w: Some(r),
+            power_limited_v: Some(power_limited_voltage_v(r, d.ohms)),
+            max_working_v: typical_max_working_v(r),
+            voltage_ok: d.v_worst_v
+                <= VOLTAGE_DERATING * voltage_limit_v(r, d.ohms) * (1.0 + SLACK),
+        })
+        .find(|r| r.voltage_ok)
+        .unwrap_or(first)
+}
+
+/// The smallest package class of a resistor of a standard rating (common
+/// practice, REFERENCE §6: SMD 0402 1/16 W, 0603 1/10 W, 0805 1/8 W, 1206
+/// 1/4 W; through-hole 1/8 W to 2 W; 5 W power types).
+pub fn resistor_package(rating_w: f64) -> &'static str {
+    const TABLE: [(f64, &str); 8] = [
+        (0.0625, "0402 SMD or larger"),
+        (0.1, "0603 SMD or larger"),
+        (0.125, "0805 SMD or 1/8 W axial"),
+        (0.25, "1206 SMD or 1/4 W axial"),
+        (0.5, "1/2 W axial"),
+        (1.0, "1 W axial"),
+        (2.0, "2 W axial"),
+        (5.0, "5 W power resistor"),
     ];
-    FRACTIONS
+    TABLE
         .iter()
         .find(|(r, _)| (r - rating_w).abs() <= SLACK * r)
-        .map_or_else(|| with_unit(rating_w, "W"), |(_, t)| t.to_string())
+        .map_or("see the rating", |(_, p)| p)
 }
 
 /// Worst dissipation and voltage of every resistor of the design (values
@@ -227,16 +264,6 @@ pub fn supply_span_v(p: &Problem) -> f64 {
     (p.rails.vdd_v - p.rails.vss_v) * (1.0 + p.spec.supply.tolerance)
 }
 
-/// `15 mW`, `158 V`: three significant figures, a space, the SI prefix
-/// joined to the unit.
-pub fn with_unit(x: f64, unit: &str) -> String {
-    let text = format_sig(x, 3);
-    match text.char_indices().last() {
-        Some((i, c)) if c.is_ascii_alphabetic() => format!("{} {c}{unit}", &text[..i]),
-        _ => format!("{text} {unit}"),
-    }
-}
-
 fn v(x: f64) -> String {
     with_unit(x, "V")
 }
@@ -271,7 +298,7 @@ pub fn cautions(p: &Problem, worst: &WorstCase, duty: &[ResistorDuty]) -> Vec<St
         ));
     }
     for d in duty {
-        let r = rate(d);
+        let r = rate_to_buy(d);
         match r.rating_w {
             None => out.push(format!(
                 "WARNING: {} dissipates up to {} at the worst corner, more than half of the largest \
@@ -281,15 +308,14 @@ pub fn cautions(p: &Problem, worst: &WorstCase, duty: &[ResistorDuty]) -> Vec<St
                 w(d.p_worst_w)
             )),
             Some(_) if !r.voltage_ok => {
-                let limit = match (r.power_limited_v, r.max_working_v) {
-                    (Some(a), Some(b)) => a.min(b),
-                    (a, b) => a.or(b).unwrap_or(0.0),
-                };
+                let largest = STANDARD_RATINGS_W[STANDARD_RATINGS_W.len() - 1];
+                let limit = voltage_limit_v(largest, d.ohms);
                 let beyond = d.v_worst_v > limit * (1.0 + SLACK);
                 out.push(format!(
-                    "WARNING: {} sees up to {} DC, {} its working-voltage limit of about {} \
-                     (typical figure, from memory: check the part's datasheet). Choose a part \
-                     rated for the voltage or split the resistance. {DEFER}",
+                    "WARNING: {} sees up to {} DC, {} the working-voltage limit of about {} \
+                     of even the largest standard part here (typical figure, from memory: check \
+                     the part's datasheet). Choose a part rated for the voltage or split the \
+                     resistance. {DEFER}",
                     d.designator,
                     v(d.v_worst_v),
                     if beyond { "beyond" } else { "above 80 % of" },
@@ -381,12 +407,6 @@ mod tests {
         assert_eq!(capacitor_rating_v(15.0), Some(25.0));
         assert_eq!(capacitor_rating_v(10.0), Some(16.0));
         assert_eq!(capacitor_rating_v(500.0), None);
-        assert_eq!(rating_text(0.0625), "1/16 W");
-        assert_eq!(rating_text(0.25), "1/4 W");
-        assert_eq!(rating_text(2.0), "2 W");
-        assert_eq!(with_unit(0.015, "W"), "15 mW");
-        assert_eq!(with_unit(158.113, "V"), "158 V");
-        assert_eq!(with_unit(4700.0, "Ω"), "4.7 kΩ");
     }
 
     // 100 kΩ at 1/4 W: E = 158.1 V (REFERENCE §6), below the 200 V typical
@@ -405,6 +425,30 @@ mod tests {
         assert_eq!(r.max_working_v, Some(200.0));
         assert!(r.voltage_ok);
         assert!(!rate(&duty(127.0)).voltage_ok);
+    }
+
+    // The part to buy steps up the standard ratings until the voltage holds
+    // too (REFERENCE §6 figures, from memory): 100 kΩ at 127 V fails 80 % of
+    // 1/4 W's 158.1 V; 1/2 W gives sqrt(0.5 · 100 kΩ) = 223.6 V against a
+    // typical 350 V, and 80 % of 223.6 V is 178.9 V.
+    #[test]
+    fn the_rating_to_buy_steps_up_for_voltage() {
+        let duty = |v: f64| ResistorDuty {
+            designator: "R1".into(),
+            ohms: 100e3,
+            p_worst_w: 0.1,
+            v_worst_v: v,
+        };
+        assert_eq!(rate_to_buy(&duty(126.0)).rating_w, Some(0.25));
+        let r = rate_to_buy(&duty(127.0));
+        assert_eq!(r.rating_w, Some(0.5));
+        assert!(r.voltage_ok);
+        close(r.power_limited_v.unwrap(), 223.606_798, 1e-8);
+        assert_eq!(resistor_package(0.5), "1/2 W axial");
+        // 5 W parts at 500 V (from memory): 80 % is 400 V, so 401 V fails.
+        let r = rate_to_buy(&duty(401.0));
+        assert!(!r.voltage_ok);
+        assert_eq!(r.rating_w, Some(0.25));
     }
 
     // REFERENCE §4.2 [computed]: plain self bias RS 1 kΩ on the curves
@@ -552,15 +596,29 @@ mod tests {
                 designator: "R1".into(),
                 ohms: 1e6,
                 p_worst_w: 0.01,
+                v_worst_v: 600.0,
+            },
+            // 100 V on 1 MΩ at 10 mW: past 80 % of 1/16 W's 50 V (from
+            // memory), within 80 % of 1/8 W's 150 V: the part to buy is
+            // 1/8 W and nothing is cautioned.
+            ResistorDuty {
+                designator: "R2".into(),
+                ohms: 1e6,
+                p_worst_w: 0.01,
                 v_worst_v: 100.0,
             },
         ];
         let c = cautions(&p, &WorstCase::empty(), &duty);
         assert_eq!(c.len(), 2, "{c:?}");
         assert!(c[0].contains("RD dissipates up to 3 W"), "{c:?}");
-        // 10 mW -> 1/16 W; E = sqrt(0.0625·1M) = 250 V, typical limit 50 V
-        // (from memory) governs: 100 V is beyond it.
-        assert!(c[1].contains("R1 sees up to 100 V DC, beyond"), "{c:?}");
-        assert!(c[1].contains("about 50 V"), "{c:?}");
+        // The largest standard part, 5 W: E = sqrt(5·1M) = 2.24 kV, typical
+        // limit 500 V (from memory) governs: 600 V is beyond it.
+        assert!(c[1].contains("R1 sees up to 600 V DC, beyond"), "{c:?}");
+        assert!(c[1].contains("about 500 V"), "{c:?}");
+        assert_eq!(
+            rate_to_buy(&duty[2]).rating_w,
+            Some(0.125),
+            "R2 takes a 1/8 W part"
+        );
     }
 }

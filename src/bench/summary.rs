@@ -4,7 +4,11 @@
 //! NOTE: the JSON keys below are a stable contract (README "Output"); a
 //! renamed field is a breaking change for scripts.
 
-use crate::analysis::{assess, feasible, point, worst_case, Check, Point, Problem, WorstCase};
+use crate::analysis::{assess, feasible, point, worst_case, Point, Problem, WorstCase};
+use crate::device::Region;
+
+/// A requirement check, as the views carry it (from `analysis`).
+pub use crate::analysis::Check;
 use crate::search::{Design, Effort, Outcome, Rejection};
 use crate::topology::Topology;
 use serde::Serialize;
@@ -50,6 +54,16 @@ pub struct PointView {
 }
 
 impl PointView {
+    /// The region in words when the device is not saturated: `triode`,
+    /// `cut off`.
+    pub fn off_saturation(&self) -> Option<&'static str> {
+        match self.region {
+            Region::Saturation => None,
+            Region::Triode => Some("triode"),
+            Region::Cutoff => Some("cut off"),
+        }
+    }
+
     /// Flatten a point.
     pub fn new(pt: &Point) -> PointView {
         let op = &pt.eval.op;

@@ -1,29 +1,25 @@
 //! What the engineer takes to the bench: every number of one chosen design
-//! that the bench report prints, computed here once (capacitors sized and
-//! confirmed, part duty and ratings, the operating point per device corner,
-//! the margins, the cautions, the response sweep) so that
-//! `report::text::bench` only formats.
+//! that the bench files show, computed here once (capacitors sized and
+//! confirmed, part duty and ratings, the bill of materials, the operating
+//! point per device corner, the margins, the cautions, the bias window and
+//! the response at every corner, the netlist) so that `report` only
+//! formats.
 //!
 //! This module computes; it prints nothing and writes no file.
 
 use crate::analysis::{assess, point, worst_case, Check, Problem, WorstCase};
-use crate::bench::caps::{size, CapPlan, CapsError};
+use crate::bench::bias::{bias_window, BiasWindow};
+use crate::bench::bom::{bom, Bom};
+use crate::bench::caps::{size, CapPlan, CapsError, DEFAULT_F_LOW_HZ};
+use crate::bench::deck::{deck, Deck};
 use crate::bench::ratings::{cautions, resistor_duty, ResistorDuty};
+use crate::bench::response::{response, Response};
 use crate::bench::summary::{design_view, DesignView, PointView};
 use crate::netlist::{Element, Netlist};
 use crate::search::Design;
 use crate::topology::{Caps, NetlistInput};
-use crate::verify::{self, SolveError};
+use crate::verify::SolveError;
 use serde::Serialize;
-
-/// Sweep span when no `f_low` is given, hertz.
-pub const DEFAULT_SWEEP_HZ: (f64, f64) = (1.0, 1e6);
-
-/// Top of the response sweep when `f_low` is given, hertz.
-pub const SWEEP_TOP_HZ: f64 = 100e3;
-
-/// Points per decade of the response sweep.
-pub const SWEEP_PPD: usize = 40;
 
 /// Why the bench view could not be built.
 #[derive(Debug, thiserror::Error)]
@@ -31,8 +27,8 @@ pub enum BenchError {
     /// Sizing the capacitors failed.
     #[error("sizing capacitors: {0}")]
     Caps(#[from] CapsError),
-    /// The response sweep failed.
-    #[error("response sweep at the nominal device: {0}")]
+    /// The response sweep or a DC solve failed.
+    #[error("nodal solver: {0}")]
     Sweep(#[from] SolveError),
 }
 
@@ -121,25 +117,40 @@ pub struct BenchView {
     /// datasheet spread and the supply extremes, with the design's
     /// resistors at their nominal values (empty in worst-case mode).
     pub spread_checks: Vec<Check>,
-    /// Capacitors sized for `f_low` (None when the spec gives no `f_low`).
-    pub caps: Option<CapPlan>,
+    /// Capacitors sized for `f_low`, or for [`DEFAULT_F_LOW_HZ`] when the
+    /// specification gives none.
+    pub caps: CapPlan,
+    /// True when the specification gives `f_low`.
+    pub f_low_given: bool,
     /// Cautions, most serious first.
     pub cautions: Vec<String>,
-    /// |gain| from the source EMF against frequency at the nominal
-    /// device: (hertz, V/V).
+    /// |gain| from the source EMF against frequency at the nominal device
+    /// and at every corner.
     #[serde(skip)]
-    pub response: Vec<(f64, f64)>,
+    pub response: Response,
+    /// The bias window: curves, bias lines, operating points, the view.
+    #[serde(skip)]
+    pub bias: BiasWindow,
+    /// The bill of materials.
+    #[serde(skip)]
+    pub bom: Bom,
+    /// The nominal-device netlist with the sized capacitors.
+    #[serde(skip)]
+    pub netlist: Netlist,
+    /// The SPICE deck: the nominal device, then every corner.
+    #[serde(skip)]
+    pub deck: Deck,
 }
 
 impl BenchView {
-    /// Capacitor values for netlists, farads (placeholders when not sized).
+    /// Capacitor values for netlists, farads.
     pub fn cap_values(&self) -> Caps {
-        self.caps.as_ref().map_or(Caps::MID_BAND, CapPlan::values)
+        self.caps.values()
     }
 
-    /// Sized capacitors as `(designator, farads)` (empty when not sized).
+    /// Sized capacitors as `(designator, farads)`.
     pub fn cap_pairs(&self) -> Vec<(String, f64)> {
-        self.caps.as_ref().map_or_else(Vec::new, CapPlan::pairs)
+        self.caps.pairs()
     }
 }
 
@@ -208,28 +219,6 @@ fn connections(net: &Netlist, sized: bool) -> Vec<Connection> {
         .collect()
 }
 
-/// |gain| against frequency at the nominal device with the given
-/// capacitors: from `0.1·f_low` to 100 kHz, or 1 Hz to 1 MHz without
-/// `f_low`. Returns (hertz, V/V).
-pub fn response(
-    p: &Problem,
-    d: &Design,
-    caps: Caps,
-    f_low_hz: Option<f64>,
-) -> Result<Vec<(f64, f64)>, SolveError> {
-    let (f0, f1) = match f_low_hz {
-        Some(f) if f * 0.1 < SWEEP_TOP_HZ => (f * 0.1, SWEEP_TOP_HZ),
-        Some(f) => (f * 0.1, f * 1e3),
-        None => DEFAULT_SWEEP_HZ,
-    };
-    let net = nominal_netlist(p, d, caps);
-    let dc = verify::dc(&net)?;
-    Ok(verify::sweep(&net, &dc, f0, f1, SWEEP_PPD)?
-        .into_iter()
-        .map(|(f, g)| (f, g.norm()))
-        .collect())
-}
-
 /// Build the bench view of design `d` ranked `rank` (1-based), from the
 /// full-spread problem `p` and the resistor shelf's name; `nominal_only`
 /// when the search checked nominal values only.
@@ -241,21 +230,32 @@ pub fn bench_view(
     nominal_only: bool,
 ) -> Result<BenchView, BenchError> {
     let t = d.topology;
-    let caps = match p.spec.f_low_hz {
-        Some(f) => Some(size(p, t, &d.values, &d.tolerances, f)?),
-        None => None,
+    let (f_low_hz, f_low_given) = match p.spec.f_low_hz {
+        Some(f) => (f, true),
+        None => (DEFAULT_F_LOW_HZ, false),
     };
-    let cap_values = caps.as_ref().map_or(Caps::MID_BAND, CapPlan::values);
-    let net = nominal_netlist(p, d, cap_values);
+    let caps = size(p, t, &d.values, &d.tolerances, f_low_hz)?;
+    let net = nominal_netlist(p, d, caps.values());
     let duty = resistor_duty(p, t, &d.values, &d.tolerances);
     let dev = &p.spec.device;
-    let response = response(p, d, cap_values, p.spec.f_low_hz)?;
+    let response = response(p, t, &d.values, caps.values(), f_low_hz, f_low_given)?;
+    let window = p.spec.limits.id_max_a.map(|m| (0.0, m));
+    let bias = bias_window(p, t, &d.values, &d.tolerances, window, d.worst.id_max_a);
+    let mut bom = bom(p, d, series, &duty, &caps, f_low_given)?;
+    if nominal_only {
+        // Every line says so: a BOM travels on its own.
+        for l in &mut bom.lines {
+            l.notes
+                .insert(0, crate::bench::summary::NOMINAL_ONLY.to_string());
+        }
+    }
+    let deck = deck(p, d, rank, &p.spec.name, true, nominal_only)?;
     Ok(BenchView {
         name: p.spec.name.clone(),
         series: series.to_string(),
         design: design_view(p, rank, d),
         summary: t.summary().to_string(),
-        connections: connections(&net, caps.is_some()),
+        connections: connections(&net, true),
         fet: FetDuty {
             pd_worst_w: d.worst.pd_max_w,
             pd_max_w: dev.pd_max_w,
@@ -278,6 +278,11 @@ pub fn bench_view(
         cautions: cautions(p, &d.worst, &duty),
         duty,
         caps,
+        f_low_given,
         response,
+        bias,
+        bom,
+        netlist: net,
+        deck,
     })
 }

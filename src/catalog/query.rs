@@ -18,6 +18,25 @@ impl Catalog {
         self.parts.is_empty()
     }
 
+    /// The relative tolerance to assume for a resistance someone chose by
+    /// hand (`analyze --values`): `fixed` when the specification sets one
+    /// for every part, else that of the catalog's part of this value (within
+    /// 1e-9 relative), else the widest in the catalog (the conservative
+    /// choice). A 0 Ω wire has none.
+    pub fn tolerance_for(&self, ohms: f64, fixed: Option<f64>) -> f64 {
+        if ohms == 0.0 {
+            return 0.0;
+        }
+        if let Some(t) = fixed {
+            return t;
+        }
+        self.parts
+            .iter()
+            .find(|p| (p.ohms - ohms).abs() <= 1e-9 * ohms)
+            .map(|p| p.tolerance)
+            .unwrap_or_else(|| self.parts.iter().map(|p| p.tolerance).fold(0.0, f64::max))
+    }
+
     /// The largest part whose resistance is at most `x_ohm` (ohms), or `None`
     /// when every part is larger or `x_ohm` is NaN.
     pub fn below(&self, x_ohm: f64) -> Option<Part> {
@@ -71,6 +90,33 @@ impl Catalog {
 
 #[cfg(test)]
 mod tests {
+
+    // A stock list of 1 % and 5 % parts: a listed value takes its own
+    // tolerance, an unlisted one the widest (5 %), a wire none, and the
+    // specification's tolerance overrides all but the wire.
+    #[test]
+    fn tolerance_for_a_hand_picked_value() {
+        let c = Catalog {
+            name: "stock".into(),
+            parts: vec![
+                Part {
+                    ohms: 1e3,
+                    tolerance: 0.01,
+                    power_w: None,
+                },
+                Part {
+                    ohms: 4.7e3,
+                    tolerance: 0.05,
+                    power_w: None,
+                },
+            ],
+        };
+        assert_eq!(c.tolerance_for(1e3, None), 0.01);
+        assert_eq!(c.tolerance_for(2.2e3, None), 0.05);
+        assert_eq!(c.tolerance_for(0.0, None), 0.0);
+        assert_eq!(c.tolerance_for(2.2e3, Some(0.02)), 0.02);
+        assert_eq!(c.tolerance_for(0.0, Some(0.02)), 0.0);
+    }
     use super::*;
     use crate::catalog::ESeries;
 

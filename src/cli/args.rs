@@ -44,7 +44,8 @@ pub(crate) enum Format {
     Json,
     /// Comma-separated values.
     Csv,
-    /// A SPICE netlist that ngspice runs unchanged.
+    /// A SPICE deck that ngspice runs unchanged (one design; `--out` for
+    /// every design).
     Spice,
 }
 
@@ -113,8 +114,8 @@ pub(crate) struct DesignArgs {
     /// Search method.
     #[arg(long, value_enum, default_value_t)]
     pub(crate) search: SearchArg,
-    /// With `--format spice`: one netlist per device corner for each design
-    /// (instead of the nominal one).
+    /// With `--format spice`: the deck also runs every device corner after
+    /// the nominal device.
     #[arg(long)]
     pub(crate) spice_corners: bool,
     /// Take the design ranked N (1 = best) to the bench: print its report,
@@ -122,9 +123,10 @@ pub(crate) struct DesignArgs {
     #[arg(long, value_name = "N", value_parser = clap::value_parser!(u16).range(1..))]
     pub(crate) pick: Option<u16>,
     /// Folder for the picked design's files (report.txt, bom.csv,
-    /// design.cir, schematic.svg, bias.svg, response.svg), written all or
-    /// nothing; must not exist unless `--force`.
-    #[arg(long, value_name = "DIR", requires = "pick")]
+    /// design.cir, schematic.svg, bias.svg, response.svg), or with
+    /// `--format spice` one deck per design; written all or nothing; must
+    /// not exist unless `--force`.
+    #[arg(long, value_name = "DIR")]
     pub(crate) out: Option<PathBuf>,
     /// Replace an existing `--out` folder whole (only one that holds
     /// nothing but gatewright's files).

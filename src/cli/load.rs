@@ -119,27 +119,10 @@ impl Loaded {
         )
     }
 
-    /// Tolerance for a value the user typed: the spec's, else the shelf
-    /// entry's, else the widest on the shelf (conservative).
+    /// Tolerance for a value the user typed (see
+    /// [`Catalog::tolerance_for`]).
     pub(crate) fn tolerance_for(&self, ohms: f64) -> f64 {
-        if ohms == 0.0 {
-            return 0.0;
-        }
-        if let Some(t) = self.spec.parts.tolerance {
-            return t;
-        }
-        self.catalog
-            .parts
-            .iter()
-            .find(|p| (p.ohms - ohms).abs() <= 1e-9 * ohms)
-            .map(|p| p.tolerance)
-            .unwrap_or_else(|| {
-                self.catalog
-                    .parts
-                    .iter()
-                    .map(|p| p.tolerance)
-                    .fold(0.0, f64::max)
-            })
+        self.catalog.tolerance_for(ohms, self.spec.parts.tolerance)
     }
 }
 

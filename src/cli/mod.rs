@@ -236,9 +236,15 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     }
     let cautions = crate::bench::view::spec_cautions(&full);
     let report_view = summary::design_report(&full, &shelf.name, &outcome, cautions);
+    if a.format == Format::Spice {
+        return design_spice(&full, &report_view, &outcome, &a);
+    }
+    if a.out.is_some() && a.pick.is_none() {
+        bail!("`--out` needs `--pick N` (the bench files of one design) or `--format spice` (one deck per design)");
+    }
     if let Some(n) = a.pick {
         if a.format != Format::Table {
-            bail!("`--format` with `--pick` is table (the bench report); use `--out DIR` for the netlist, BOM and pictures");
+            bail!("`--format` with `--pick` is table (the bench report) or spice (the deck); use `--out DIR` for the netlist, BOM and pictures");
         }
         let n = usize::from(n);
         return bench::run(&full, &report_view, &outcome, n, a.out.as_deref(), a.force);
@@ -246,8 +252,7 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     let text = match a.format {
         Format::Json => json(&report_view)?,
         Format::Csv => report::csv::designs(&report_view),
-        Format::Table => report::table::design(&report_view),
-        Format::Spice => design_spice(&full, &outcome, a.spice_corners),
+        Format::Table | Format::Spice => report::table::design(&report_view),
     };
     emit(&text)?;
     if outcome.designs.is_empty() && a.format == Format::Csv {
@@ -265,56 +270,67 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
     })
 }
 
-/// `design --format spice`: the nominal netlist of each design, or with
-/// `corners` one netlist per device corner. Each deck starts with its title
-/// line (as SPICE requires) and is followed, after its `.end`, by a `*`
-/// separator line naming the design and the corner: ngspice ignores what
-/// follows `.end`, so the output runs as it is (the first deck) and splits
-/// at the separators into decks that run unchanged.
-fn design_spice(full: &Problem, outcome: &search::Outcome, corners: bool) -> String {
-    let mut s = String::new();
-    let input = load::netlist_input(full, &full.nominal);
-    let note = outcome.nominal_only.then(|| {
-        format!(
-            "{}: {}",
-            crate::bench::summary::NOMINAL_ONLY,
-            crate::bench::summary::NOMINAL_ONLY_WHY
+/// `design --format spice`: one deck that ngspice runs unchanged, of the
+/// design ranked `--pick` (default 1), with `--spice-corners` running every
+/// device corner after the nominal device; or with `--out DIR` one deck per
+/// design, `designN.cir` (`designN-corners.cir`), written all or nothing.
+fn design_spice(
+    full: &Problem,
+    view: &summary::DesignReport,
+    outcome: &search::Outcome,
+    a: &args::DesignArgs,
+) -> Result<ExitCode> {
+    if outcome.designs.is_empty() {
+        talk(report::table::design(view).trim_end());
+        return Ok(ExitCode::from(1));
+    }
+    let deck_of = |rank: usize, d: &search::Design| -> Result<String> {
+        let deck = crate::bench::deck::deck(
+            full,
+            d,
+            rank,
+            &full.spec.name,
+            a.spice_corners,
+            outcome.nominal_only,
         )
-    });
-    for (i, d) in outcome.designs.iter().enumerate() {
-        let rank = i + 1;
-        let t = d.topology;
-        if corners {
-            let stem = format!("design{rank}");
-            for deck in report::spice::per_corner(
-                t,
-                &d.values,
-                &input,
-                &full.corners,
-                &stem,
-                note.as_slice(),
-            ) {
-                s.push_str(&deck.text);
-                s.push_str(&format!(
-                    "* ==== end of {}: design {rank} ({}), device corner {}: {} ====\n",
-                    deck.file_name,
-                    t.id(),
-                    deck.index,
-                    deck.label
-                ));
-            }
-        } else {
-            let net = t.netlist(&d.values, &input);
-            s.push_str(&report::spice::netlist_to_spice(
-                &net,
-                &format!("gatewright design {rank} {}", t.id()),
-                note.as_slice(),
-            ));
-            s.push_str(&format!(
-                "* ==== end of design {rank} ({}), nominal device ====\n",
-                t.id()
+        .with_context(|| format!("design #{rank} ({})", d.topology.id()))?;
+        Ok(report::spice::deck(&deck))
+    };
+    if let Some(dir) = &a.out {
+        if a.pick.is_some() {
+            bail!("`--format spice --out DIR` writes every design's deck; drop `--pick`, or drop `--format spice` for the bench files of one design");
+        }
+        let suffix = if a.spice_corners { "-corners" } else { "" };
+        let mut files: Vec<(String, Vec<u8>)> = Vec::new();
+        for (i, d) in outcome.designs.iter().enumerate() {
+            let rank = i + 1;
+            files.push((
+                format!("design{rank}{suffix}.cir"),
+                deck_of(rank, d)?.into_bytes(),
             ));
         }
+        let named: Vec<(&str, Vec<u8>)> =
+            files.iter().map(|(n, b)| (n.as_str(), b.clone())).collect();
+        out_dir::write_folder(dir, a.force, &named)?;
+        talk(&format!(
+            "wrote {} deck{} (design1{suffix}.cir to design{}{suffix}.cir) to `{}`",
+            files.len(),
+            if files.len() == 1 { "" } else { "s" },
+            files.len(),
+            dir.display()
+        ));
+        return Ok(ExitCode::SUCCESS);
     }
-    s
+    let rank = a.pick.map_or(1, usize::from);
+    let count = outcome.designs.len();
+    let Some(d) = rank.checked_sub(1).and_then(|i| outcome.designs.get(i)) else {
+        bail!("`--pick` = {rank}: out of range; the search found {count} design(s) (ranked 1 to {count})");
+    };
+    emit(&deck_of(rank, d)?)?;
+    if a.pick.is_none() && count > 1 {
+        talk(&format!(
+            "note: the deck of design #1 of {count}; `--pick N` prints another, `--out DIR` writes one per design"
+        ));
+    }
+    Ok(ExitCode::SUCCESS)
 }

@@ -1,44 +1,26 @@
-//! Bill of materials as CSV: one row per fitted part, columns exactly
-//! `designator,value,series,tolerance,rating,quantity,notes`.
+//! The bill of materials as CSV, from the bench stage's [`Bom`]: one row
+//! per line of equal parts, with the header [`HEADER`].
 //!
-//! [`bom_rows`] turns a design and its ratings (computed in
-//! [`crate::bench::ratings`]) into rows of text; [`bom_csv`] writes them. Quoting
-//! follows RFC 4180: a field holding a comma, a double quote, CR or LF is
-//! put in double quotes with inner quotes doubled. Lines end in LF (RFC 4180
-//! asks for CRLF; every reader also takes LF, and the other outputs use LF).
-//! The writer is a few lines with no error path, so it is written here rather
-//! than pulled in; the tests read the output back with the `csv` crate.
+//! The text is ASCII (`ohm` for Ω, `u` for µ, no ±), so a spreadsheet that
+//! assumes a legacy code page opens it as it is; when a field holds text
+//! the user wrote that is not ASCII (a stock list's or a device class's
+//! name), the file starts with a UTF-8 byte-order mark instead, which tells
+//! such a spreadsheet the encoding. Quoting follows RFC 4180: a field
+//! holding a comma, a double quote, CR or LF is put in double quotes with
+//! inner quotes doubled. Lines end in LF (RFC 4180 asks for CRLF; every
+//! reader also takes LF, and the other outputs use LF). The writer is a few
+//! lines with no error path, so it is written here rather than pulled in;
+//! the tests read the output back with the `csv` crate.
 
-use crate::analysis::Problem;
-use crate::bench::ratings::{
-    capacitor_rating_v, rate, rating_text, supply_span_v, with_unit, ResistorDuty,
-};
-use crate::netlist::FetKind;
-use crate::search::Design;
-use crate::units::format_value;
+use crate::bench::bom::{Bom, BomLine, PartClass};
+use crate::units::{round_sig, with_unit};
 
 /// The header line, without its line ending.
-pub const HEADER: &str = "designator,value,series,tolerance,rating,quantity,notes";
+pub const HEADER: &str = "item,qty,designators,roles,part,value,tolerance,power_rating,\
+                          worst_power,worst_voltage,voltage_rating,package,series,notes";
 
-/// One line of the bill of materials, as text.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub struct BomRow {
-    /// Designator, e.g. `RD`, `C_IN`, `Q1`.
-    pub designator: String,
-    /// Value with its unit, e.g. `4.7kΩ`, `100nF`.
-    pub value: String,
-    /// Where the value comes from: an E-series name, a stock list, or a
-    /// device class.
-    pub series: String,
-    /// Tolerance, e.g. `±5%` (empty when not applicable).
-    pub tolerance: String,
-    /// Rating to buy, e.g. `1/4 W`, `25 V`.
-    pub rating: String,
-    /// How many, a count.
-    pub quantity: u32,
-    /// Free text: worst-case duty, cautions.
-    pub notes: String,
-}
+/// The UTF-8 byte-order mark.
+pub const UTF8_BOM: char = '\u{feff}';
 
 /// One CSV field, quoted when RFC 4180 requires it.
 fn field(text: &str) -> String {
@@ -49,135 +31,143 @@ fn field(text: &str) -> String {
     }
 }
 
-/// The CSV text: the header, then one line per row, each ending in LF.
-pub fn bom_csv(rows: &[BomRow]) -> String {
+/// How the text names units: ASCII for the CSV, symbols for the terminal.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Symbols {
+    /// `ohm`, `u`, `+/-`.
+    Ascii,
+    /// `Ω`, `µ`, `±`.
+    Unicode,
+}
+
+fn sym(text: String, s: Symbols) -> String {
+    match s {
+        Symbols::Ascii => text,
+        Symbols::Unicode => {
+            let t = text.replace(" ohm", " Ω").replace("ohm", "Ω");
+            match t.find(" u") {
+                Some(i) => format!("{} µ{}", &t[..i], &t[i + 2..]),
+                None => t,
+            }
+        }
+    }
+}
+
+/// A power rating in the words a buyer uses: `1/16 W`, `1/4 W`, `2 W`.
+pub fn rating_text(rating_w: f64) -> String {
+    const FRACTIONS: [(f64, &str); 5] = [
+        (0.0625, "1/16 W"),
+        (0.1, "1/10 W"),
+        (0.125, "1/8 W"),
+        (0.25, "1/4 W"),
+        (0.5, "1/2 W"),
+    ];
+    FRACTIONS
+        .iter()
+        .find(|(r, _)| (r - rating_w).abs() <= 1e-9 * r)
+        .map_or_else(|| with_unit(rating_w, "W"), |(_, t)| t.to_string())
+}
+
+/// The line's value: `75 kohm`, `3.3 uF`, or the FET's description.
+pub fn value_text(l: &BomLine, s: Symbols) -> String {
+    match (l.class, l.value) {
+        (PartClass::Resistor, Some(v)) => sym(with_unit(v, "ohm"), s),
+        (PartClass::FilmCapacitor | PartClass::ElectrolyticCapacitor, Some(v)) => {
+            sym(with_unit(v, "F"), s)
+        }
+        _ => l.description.clone(),
+    }
+}
+
+/// A relative tolerance as `1%` (`0.5%`), empty when there is none.
+pub fn tolerance_text(l: &BomLine, s: Symbols) -> String {
+    match l.tolerance {
+        Some(t) if t > 0.0 && t.is_finite() => {
+            let pm = if s == Symbols::Unicode { "±" } else { "" };
+            format!("{pm}{}%", round_sig(t * 100.0, 3))
+        }
+        _ => String::new(),
+    }
+}
+
+/// The line's cells in [`HEADER`] order; `item` is 1-based.
+pub fn cells(item: usize, l: &BomLine, s: Symbols) -> Vec<String> {
+    let min = if l.ratings_are_minimums { ">= " } else { "" };
+    let opt = |x: Option<f64>, f: &dyn Fn(f64) -> String| x.map_or_else(String::new, f);
+    vec![
+        item.to_string(),
+        l.quantity().to_string(),
+        l.designators.join(", "),
+        l.roles.join(", "),
+        l.class.words().to_string(),
+        value_text(l, s),
+        tolerance_text(l, s),
+        opt(l.power_rating_w, &|w| {
+            if l.ratings_are_minimums {
+                format!("{min}{}", with_unit(w, "W"))
+            } else {
+                rating_text(w)
+            }
+        }),
+        opt(l.power_worst_w, &|w| with_unit(w, "W")),
+        opt(l.voltage_worst_v, &|v| with_unit(v, "V")),
+        opt(l.voltage_rating_v, &|v| {
+            format!("{min}{}", with_unit(v, "V"))
+        }),
+        l.package.clone(),
+        crate::report::printable(&l.series).into_owned(),
+        l.notes.join("; "),
+    ]
+}
+
+/// The CSV text: the header, then one line per BOM line, each ending in LF;
+/// ASCII, or UTF-8 with a byte-order mark when some field is not ASCII.
+pub fn bom_csv(b: &Bom) -> String {
     let mut out = String::from(HEADER);
     out.push('\n');
-    for r in rows {
-        let cells = [
-            field(&r.designator),
-            field(&r.value),
-            field(&r.series),
-            field(&r.tolerance),
-            field(&r.rating),
-            r.quantity.to_string(),
-            field(&r.notes),
-        ];
-        out.push_str(&cells.join(","));
+    for (i, l) in b.lines.iter().enumerate() {
+        let row: Vec<String> = cells(i + 1, l, Symbols::Ascii)
+            .iter()
+            .map(|c| field(c))
+            .collect();
+        out.push_str(&row.join(","));
         out.push('\n');
     }
-    out
-}
-
-/// A relative tolerance as `±5%` (`±0.5%`), empty for 0.
-pub fn tolerance_text(tol: f64) -> String {
-    if tol > 0.0 && tol.is_finite() {
-        format!("±{}%", crate::units::round_sig(tol * 100.0, 3))
+    if out.is_ascii() {
+        out
     } else {
-        String::new()
+        format!("{UTF8_BOM}{out}")
     }
-}
-
-/// Rows for a design: its resistors (0 Ω positions are wires and get no
-/// row), the capacitors given as (designator, farads), and the FET. `series`
-/// names the resistor catalog (the shelf's name); `duty` comes from
-/// [`crate::bench::ratings::resistor_duty`]. Capacitor voltage ratings come from
-/// [`capacitor_rating_v`] over the supply span.
-pub fn bom_rows(
-    p: &Problem,
-    d: &Design,
-    series: &str,
-    duty: &[ResistorDuty],
-    caps: &[(String, f64)],
-) -> Vec<BomRow> {
-    let mut rows = Vec::new();
-    let span = supply_span_v(p);
-    for (i, (name, &ohms)) in d.topology.parts().iter().zip(&d.values).enumerate() {
-        if ohms <= 0.0 {
-            continue;
-        }
-        let (rating, notes) = match duty.iter().find(|x| x.designator == *name) {
-            Some(x) => {
-                let r = rate(x);
-                let rating = r
-                    .rating_w
-                    .map_or_else(|| "over 5 W".to_string(), rating_text);
-                let mut notes = if x.p_worst_w > 0.0 {
-                    format!(
-                        "worst {} at {} DC",
-                        with_unit(x.p_worst_w, "W"),
-                        with_unit(x.v_worst_v, "V")
-                    )
-                } else {
-                    "no DC current".to_string()
-                };
-                if !r.voltage_ok {
-                    notes.push_str("; check working voltage");
-                }
-                (rating, notes)
-            }
-            None => (String::new(), String::new()),
-        };
-        rows.push(BomRow {
-            designator: (*name).to_string(),
-            value: format!("{}Ω", format_value(ohms)),
-            series: series.to_string(),
-            tolerance: tolerance_text(d.tolerances.get(i).copied().unwrap_or(0.0)),
-            rating,
-            quantity: 1,
-            notes,
-        });
-    }
-    for (name, farads) in caps {
-        rows.push(BomRow {
-            designator: name.clone(),
-            value: format!("{}F", format_value(*farads)),
-            series: String::new(),
-            tolerance: String::new(),
-            rating: capacitor_rating_v(span)
-                .map_or_else(|| "see notes".to_string(), |v| with_unit(v, "V")),
-            quantity: 1,
-            notes: if *farads >= 1e-6 {
-                "if electrolytic, mind its polarity".to_string()
-            } else {
-                String::new()
-            },
-        });
-    }
-    let dev = &p.spec.device;
-    let kind = match p.kind {
-        FetKind::NJfet => "n-channel JFET",
-        FetKind::NMos => "n-channel MOSFET",
-    };
-    let mut notes = format!("worst PD {}", with_unit(d.worst.pd_max_w, "W"));
-    if let Some(pd) = dev.pd_max_w {
-        notes.push_str(&format!(" of {} rated", with_unit(pd, "W")));
-    }
-    rows.push(BomRow {
-        designator: "Q1".to_string(),
-        value: format!("{kind} ({})", dev.family.id()),
-        series: dev.source.clone(),
-        tolerance: String::new(),
-        rating: format!("VDS >= {}", with_unit(span, "V")),
-        quantity: 1,
-        notes,
-    });
-    rows
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
 
-    fn row(designator: &str, notes: &str) -> BomRow {
-        BomRow {
-            designator: designator.into(),
-            value: "4.7kΩ".into(),
+    fn line(notes: &[&str]) -> BomLine {
+        BomLine {
+            designators: vec!["R1".into(), "R3".into()],
+            roles: vec!["RG (gate return)".into(), "RD (drain load)".into()],
+            class: PartClass::Resistor,
+            description: String::new(),
+            value: Some(4700.0),
+            tolerance: Some(0.05),
             series: "E24".into(),
-            tolerance: "±5%".into(),
-            rating: "1/4 W".into(),
-            quantity: 1,
-            notes: notes.into(),
+            power_rating_w: Some(0.0625),
+            power_worst_w: Some(1.5e-3),
+            voltage_worst_v: Some(2.65),
+            voltage_rating_v: None,
+            ratings_are_minimums: false,
+            package: "0402 SMD or larger".into(),
+            notes: notes.iter().map(|s| s.to_string()).collect(),
+        }
+    }
+
+    fn bom(lines: Vec<BomLine>) -> Bom {
+        Bom {
+            lines,
+            f_low_hz: 20.0,
+            f_low_given: true,
         }
     }
 
@@ -185,26 +175,44 @@ mod tests {
     // double quotes, and an inner double quote is written twice.
     #[test]
     fn quotes_only_the_fields_that_need_it() {
-        let text = bom_csv(&[
-            row("RD", "plain"),
-            row("RS", "a, b"),
-            row("R1", "say \"hot\""),
-            row("R2", "two\nlines"),
-        ]);
+        let text = bom_csv(&bom(vec![
+            line(&[]),
+            line(&["say \"hot\""]),
+            line(&["two\nlines"]),
+        ]));
         insta::assert_snapshot!(text, @r###"
-        designator,value,series,tolerance,rating,quantity,notes
-        RD,4.7kΩ,E24,±5%,1/4 W,1,plain
-        RS,4.7kΩ,E24,±5%,1/4 W,1,"a, b"
-        R1,4.7kΩ,E24,±5%,1/4 W,1,"say ""hot"""
-        R2,4.7kΩ,E24,±5%,1/4 W,1,"two
+        item,qty,designators,roles,part,value,tolerance,power_rating,worst_power,worst_voltage,voltage_rating,package,series,notes
+        1,2,"R1, R3","RG (gate return), RD (drain load)",resistor,4.7 kohm,5%,1/16 W,1.5 mW,2.65 V,,0402 SMD or larger,E24,
+        2,2,"R1, R3","RG (gate return), RD (drain load)",resistor,4.7 kohm,5%,1/16 W,1.5 mW,2.65 V,,0402 SMD or larger,E24,"say ""hot"""
+        3,2,"R1, R3","RG (gate return), RD (drain load)",resistor,4.7 kohm,5%,1/16 W,1.5 mW,2.65 V,,0402 SMD or larger,E24,"two
         lines"
         "###);
+        assert!(text.is_ascii());
+    }
+
+    // A non-ASCII name the user wrote: the file says it is UTF-8 with a
+    // byte-order mark (Unicode standard, §23.8: U+FEFF at the start of a
+    // UTF-8 stream is a signature).
+    #[test]
+    fn non_ascii_text_gets_a_byte_order_mark() {
+        let mut l = line(&[]);
+        l.series = "Lager-Ω".into();
+        let text = bom_csv(&bom(vec![l]));
+        assert!(text.starts_with('\u{feff}'));
+        assert_eq!(&text.as_bytes()[..3], &[0xEF, 0xBB, 0xBF]);
     }
 
     #[test]
-    fn tolerance_text_is_percent() {
-        assert_eq!(tolerance_text(0.05), "±5%");
-        assert_eq!(tolerance_text(0.005), "±0.5%");
-        assert_eq!(tolerance_text(0.0), "");
+    fn symbols_for_the_terminal() {
+        let l = line(&[]);
+        assert_eq!(value_text(&l, Symbols::Unicode), "4.7 kΩ");
+        assert_eq!(tolerance_text(&l, Symbols::Unicode), "±5%");
+        let mut c = line(&[]);
+        c.class = PartClass::ElectrolyticCapacitor;
+        c.value = Some(3.3e-6);
+        assert_eq!(value_text(&c, Symbols::Ascii), "3.3 uF");
+        assert_eq!(value_text(&c, Symbols::Unicode), "3.3 µF");
+        assert_eq!(rating_text(0.25), "1/4 W");
+        assert_eq!(rating_text(2.0), "2 W");
     }
 }

@@ -24,9 +24,8 @@
 //!
 //! This module formats; it does no file I/O and no circuit analysis.
 
-use crate::device::{Corner, SquareLaw};
+use crate::bench::deck::{Deck, DeckCorner};
 use crate::netlist::{Element, FetKind, Netlist, Node, GROUND};
-use crate::topology::{NetlistInput, Topology};
 use std::fmt::Write as _;
 
 /// Frequency at which the `.control` block prints the output magnitude,
@@ -149,19 +148,6 @@ pub fn designator(e: &Element) -> String {
     }
 }
 
-/// A file-name stem: letters, digits, `-`, `_` and `.`; anything else `_`.
-fn file_stem(stem: &str) -> String {
-    stem.chars()
-        .map(|c| {
-            if c.is_ascii_alphanumeric() || matches!(c, '-' | '_' | '.') {
-                c
-            } else {
-                '_'
-            }
-        })
-        .collect()
-}
-
 /// The name of a FET's `.model` card.
 fn model_name(designator: &str) -> String {
     format!("{designator}_LAW")
@@ -184,24 +170,26 @@ fn one_line(text: &str) -> String {
     super::printable(&text.replace(['\r', '\n'], " ")).into_owned()
 }
 
-/// The `.model` card of a FET at its square law.
-fn model_card(name: &str, kind: FetKind, law: &SquareLaw) -> String {
-    let lambda = if law.lambda_per_v != 0.0 {
-        format!(" LAMBDA={}", spice_number(law.lambda_per_v))
-    } else {
-        String::new()
-    };
+/// The SPICE model parameters of a square law (REFERENCE §2.5): `VTO`,
+/// then `BETA = k` (JFET) or `KP = 2k` (level-1 MOSFET, W = L), then
+/// `LAMBDA` when it is not zero.
+fn model_params(kind: FetKind, vto_v: f64, k_a_per_v2: f64, lambda_per_v: f64) -> Vec<String> {
+    let mut p = vec![format!("VTO={}", spice_number(vto_v))];
     match kind {
-        FetKind::NJfet => format!(
-            ".model {name} NJF(VTO={} BETA={}{lambda})",
-            spice_number(law.vto_v),
-            spice_number(law.k_a_per_v2)
-        ),
-        FetKind::NMos => format!(
-            ".model {name} NMOS(LEVEL=1 VTO={} KP={}{lambda})",
-            spice_number(law.vto_v),
-            spice_number(2.0 * law.k_a_per_v2)
-        ),
+        FetKind::NJfet => p.push(format!("BETA={}", spice_number(k_a_per_v2))),
+        FetKind::NMos => p.push(format!("KP={}", spice_number(2.0 * k_a_per_v2))),
+    }
+    if lambda_per_v != 0.0 {
+        p.push(format!("LAMBDA={}", spice_number(lambda_per_v)));
+    }
+    p
+}
+
+/// The `.model` card of a FET.
+fn model_card(name: &str, kind: FetKind, params: &[String]) -> String {
+    match kind {
+        FetKind::NJfet => format!(".model {name} NJF({})", params.join(" ")),
+        FetKind::NMos => format!(".model {name} NMOS(LEVEL=1 {})", params.join(" ")),
     }
 }
 
@@ -215,6 +203,26 @@ fn model_card(name: &str, kind: FetKind, law: &SquareLaw) -> String {
 /// `vm(<output>)` at [`GAIN_FREQUENCY_HZ`]: with the signal source at 1 V AC
 /// that is the magnitude of the gain from the source EMF, V/V.
 pub fn netlist_to_spice(net: &Netlist, title: &str, comments: &[String]) -> String {
+    write_deck(net, title, comments, &[], GAIN_FREQUENCY_HZ)
+}
+
+/// A design's deck (see [`crate::bench::deck`]): as [`netlist_to_spice`],
+/// with |gain| printed at `d.gain_hz`, and after the nominal device each of
+/// `d.corners` in turn: an `echo` line `corner N: LABEL`, one `altermod`
+/// per model parameter (ngspice-39 applied only one parameter of an
+/// `altermod` line that gave several), then the same prints. The whole deck
+/// runs unchanged with `ngspice -b`.
+pub fn deck(d: &Deck) -> String {
+    write_deck(&d.netlist, &d.title, &d.comments, &d.corners, d.gain_hz)
+}
+
+fn write_deck(
+    net: &Netlist,
+    title: &str,
+    comments: &[String],
+    corners: &[DeckCorner],
+    gain_hz: f64,
+) -> String {
     let mut out = String::new();
     let title = one_line(title);
     let _ = writeln!(
@@ -232,6 +240,8 @@ pub fn netlist_to_spice(net: &Netlist, title: &str, comments: &[String]) -> Stri
         }
     }
     let mut models = Vec::new();
+    // (model name, kind) of each FET, for the corners' altermod lines.
+    let mut fets: Vec<(String, FetKind)> = Vec::new();
     let mut currents = Vec::new();
     for e in &net.elements {
         let des = designator(e);
@@ -261,7 +271,9 @@ pub fn netlist_to_spice(net: &Netlist, title: &str, comments: &[String]) -> Stri
                 kind, d, g, s, law, ..
             } => {
                 let model = model_name(&des);
-                models.push(model_card(&model, *kind, law));
+                let params = model_params(*kind, law.vto_v, law.k_a_per_v2, law.lambda_per_v);
+                models.push(model_card(&model, *kind, &params));
+                fets.push((model.clone(), *kind));
                 currents.push(format!("@{}[id]", des.to_ascii_lowercase()));
                 match kind {
                     FetKind::NJfet => {
@@ -285,88 +297,49 @@ pub fn netlist_to_spice(net: &Netlist, title: &str, comments: &[String]) -> Stri
     for m in &models {
         let _ = writeln!(out, "{m}");
     }
-    out.push_str(".op\n.ac dec 10 1 100k\n.control\nset numdgt=12\nop\n");
+    out.push_str(".op\n.ac dec 10 1 100k\n.control\nset numdgt=12\n");
     let voltages: Vec<String> = (1..net.nodes.len())
         .map(|i| format!("v({})", node_name(net, i)))
         .collect();
-    if !voltages.is_empty() {
-        let _ = writeln!(out, "print {}", voltages.join(" "));
-    }
-    for c in &currents {
-        let _ = writeln!(out, "print {c}");
-    }
-    if net.output != GROUND {
-        let f = spice_number(GAIN_FREQUENCY_HZ);
-        let _ = writeln!(out, "ac lin 1 {f} {f}");
-        let _ = writeln!(out, "print vm({})", node_name(net, net.output));
+    let prints = |out: &mut String| {
+        out.push_str("op\n");
+        if !voltages.is_empty() {
+            let _ = writeln!(out, "print {}", voltages.join(" "));
+        }
+        for c in &currents {
+            let _ = writeln!(out, "print {c}");
+        }
+        if net.output != GROUND {
+            let f = spice_number(gain_hz);
+            let _ = writeln!(out, "ac lin 1 {f} {f}");
+            let _ = writeln!(out, "print vm({})", node_name(net, net.output));
+        }
+    };
+    prints(&mut out);
+    for (i, c) in corners.iter().enumerate() {
+        let _ = writeln!(out, "echo corner {i}: {}", one_line(&c.label));
+        for (model, kind) in &fets {
+            let mut params = model_params(*kind, c.law.vto_v, c.law.k_a_per_v2, c.law.lambda_per_v);
+            // LAMBDA is set even when the corner's is 0, so the nominal
+            // model's value never carries over.
+            if c.law.lambda_per_v == 0.0 {
+                params.push("LAMBDA=0".to_string());
+            }
+            for p in params {
+                let _ = writeln!(out, "altermod {model} {}", p.to_ascii_lowercase());
+            }
+        }
+        prints(&mut out);
     }
     out.push_str("quit 0\n.endc\n.end\n");
     out
 }
 
-/// One deck of [`per_corner`].
-#[derive(Debug, Clone, PartialEq)]
-pub struct CornerNetlist {
-    /// Index of the corner in the slice given (0-based).
-    pub index: usize,
-    /// The corner's label, e.g. `idss=min vgs_off=max`.
-    pub label: String,
-    /// Suggested file name: `<stem>-corner<index>.cir`.
-    pub file_name: String,
-    /// The SPICE deck.
-    pub text: String,
-}
-
-/// One SPICE deck per device corner: the topology's netlist with the
-/// corner's law in place of `input.law`, titled and named with the corner
-/// index. `stem` names the design (characters other than ASCII letters,
-/// digits, `-`, `_` and `.` become `_`); `comments` go on every deck, followed by the corner's label and
-/// law (VTO volts, k A/V², lambda 1/V).
-pub fn per_corner(
-    t: &dyn Topology,
-    values: &[f64],
-    input: &NetlistInput,
-    corners: &[Corner],
-    stem: &str,
-    comments: &[String],
-) -> Vec<CornerNetlist> {
-    let stem = file_stem(stem);
-    corners
-        .iter()
-        .enumerate()
-        .map(|(index, corner)| {
-            let build = NetlistInput {
-                law: corner.law,
-                ..*input
-            };
-            let net = t.netlist(values, &build);
-            let mut notes = comments.to_vec();
-            notes.push(format!(
-                "topology {}, device corner {index}: {}",
-                t.id(),
-                corner.label
-            ));
-            notes.push(format!(
-                "square law: VTO = {} V, k = {} A/V^2, lambda = {} 1/V",
-                spice_number(corner.law.vto_v),
-                spice_number(corner.law.k_a_per_v2),
-                spice_number(corner.law.lambda_per_v)
-            ));
-            let title = format!("{stem} {} corner {index}", t.id());
-            CornerNetlist {
-                index,
-                label: corner.label.clone(),
-                file_name: format!("{stem}-corner{index}.cir"),
-                text: netlist_to_spice(&net, &title, &notes),
-            }
-        })
-        .collect()
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::topology::{by_id, Caps, Rails};
+    use crate::device::SquareLaw;
+    use crate::topology::{by_id, Caps, NetlistInput, Rails};
 
     /// Reads a SPICE number by the ngspice manual's table of scale factors
     /// (T 1e12, G 1e9, Meg 1e6, K 1e3, mil 25.4e-6, m 1e-3, u 1e-6, n 1e-9,
@@ -568,24 +541,19 @@ mod tests {
         assert_eq!(designator(&c), "CBYPASS");
     }
 
+    // The corner loop: an echo line per corner, then one altermod per
+    // model parameter with the corner's law (BETA = k for a JFET), then the
+    // prints again; LAMBDA is reset to 0 where the corner has none.
     #[test]
-    fn one_deck_per_corner_with_the_corner_law() {
+    fn a_deck_runs_every_corner_after_the_nominal_device() {
         let t = by_id("self-bias").unwrap();
-        let law = |vto: f64| SquareLaw {
+        let law = |vto: f64, lambda: f64| crate::device::SquareLaw {
             vto_v: vto,
             k_a_per_v2: 5e-4,
-            lambda_per_v: 0.0,
+            lambda_per_v: lambda,
         };
-        let corners: Vec<Corner> = [-3.0, -5.0]
-            .iter()
-            .map(|&v| Corner {
-                label: format!("vgs_off={v}"),
-                params: Default::default(),
-                law: law(v),
-            })
-            .collect();
         let input = NetlistInput {
-            law: law(-4.0),
+            law: law(-4.0, 0.01),
             kind: FetKind::NJfet,
             rails: Rails {
                 vdd_v: 15.0,
@@ -595,12 +563,30 @@ mod tests {
             rsig_ohm: 0.0,
             caps: Caps::MID_BAND,
         };
-        let decks = per_corner(t, &[1e6, 1e3, 3.3e3], &input, &corners, "demo/a-1", &[]);
-        assert_eq!(decks.len(), 2);
-        assert_eq!(decks[1].file_name, "demo_a-1-corner1.cir");
-        assert_eq!(decks[1].label, "vgs_off=-5");
-        assert!(decks[0].text.contains("NJF(VTO=-3 BETA=500u)"));
-        assert!(decks[1].text.contains("NJF(VTO=-5 BETA=500u)"));
-        assert!(decks[1].text.starts_with("demo_a-1 self-bias corner 1\n"));
+        let d = Deck {
+            title: "demo".into(),
+            comments: vec!["a note".into()],
+            netlist: t.netlist(&[1e6, 1e3, 3.3e3], &input),
+            corners: vec![
+                DeckCorner {
+                    label: "vgs_off=min".into(),
+                    law: law(-5.0, 0.0),
+                },
+                DeckCorner {
+                    label: "vgs_off=max".into(),
+                    law: law(-3.0, 0.02),
+                },
+            ],
+            gain_hz: 20e3,
+        };
+        let text = deck(&d);
+        assert!(text.starts_with("demo\n* a note\n"));
+        assert!(text.contains(".model JQ1_LAW NJF(VTO=-4 BETA=500u LAMBDA=10m)"));
+        let want = "echo corner 0: vgs_off=min\naltermod JQ1_LAW vto=-5\naltermod JQ1_LAW beta=500u\naltermod JQ1_LAW lambda=0\nop\n";
+        assert!(text.contains(want), "{text}");
+        assert!(text.contains("altermod JQ1_LAW vto=-3\naltermod JQ1_LAW beta=500u\naltermod JQ1_LAW lambda=20m\nop\n"), "{text}");
+        assert_eq!(text.matches("ac lin 1 20k 20k\n").count(), 3);
+        assert_eq!(text.matches("print vm(out)\n").count(), 3);
+        assert!(text.ends_with("quit 0\n.endc\n.end\n"));
     }
 }

@@ -59,17 +59,14 @@ fn corner_row(p: &PointView) -> Vec<String> {
         format_plain(p.gain, 4),
         q(p.zin_ohm, "Ω"),
         q(p.zout_ohm, "Ω"),
-        match p.region {
-            crate::device::Region::Saturation => "yes".to_string(),
-            crate::device::Region::Triode => "NO (triode)".to_string(),
-            crate::device::Region::Cutoff => "NO (cut off)".to_string(),
-        },
+        p.off_saturation()
+            .map_or_else(|| "yes".to_string(), |r| format!("NO ({r})")),
     ]
 }
 
 /// What the margins of `checks` are fractions of, one line per base
 /// (in the order the checks come), under a heading line.
-pub(super) fn margin_note(checks: &[crate::analysis::Check]) -> String {
+pub(super) fn margin_note(checks: &[crate::bench::summary::Check]) -> String {
     let mut groups: Vec<(&str, Vec<&str>)> = Vec::new();
     for c in checks {
         match groups.iter_mut().find(|g| g.0 == c.basis) {

@@ -1,14 +1,12 @@
 //! The bench report (`report.txt`, and the terminal with `--pick N`): pure
-//! formatting of a [`BenchView`] and the BOM rows built from it. Nothing
-//! here computes physics.
+//! formatting of a [`BenchView`]. Nothing here computes physics.
 
-use super::bom::BomRow;
+use super::bom::{rating_text, tolerance_text, value_text as bom_value, Symbols};
 use super::table::{corner_table, table};
+use crate::bench::bom::{BomLine, PartClass};
 use crate::bench::caps::CapPlan;
-use crate::bench::ratings::with_unit;
 use crate::bench::view::{BenchView, Connection, PartKind};
-use crate::topology::CapRole;
-use crate::units::{format_sig, format_value};
+use crate::units::{format_sig, format_value, with_unit};
 
 /// Width the report's prose is wrapped to, characters.
 const PROSE: usize = 100;
@@ -83,15 +81,6 @@ fn value_text(c: &Connection) -> String {
     }
 }
 
-fn role_text(r: CapRole) -> &'static str {
-    match r {
-        CapRole::InputCoupling => "input coupling",
-        CapRole::OutputCoupling => "output coupling",
-        CapRole::SourceBypass => "source bypass",
-        CapRole::GateBypass => "gate bypass",
-    }
-}
-
 fn hz(f: Option<f64>, floor: f64) -> String {
     f.map_or_else(
         || format!("below {}", with_unit(floor, "Hz")),
@@ -99,7 +88,19 @@ fn hz(f: Option<f64>, floor: f64) -> String {
     )
 }
 
-fn caps_section(out: &mut String, plan: &CapPlan) {
+fn caps_section(out: &mut String, plan: &CapPlan, given: bool) {
+    if !given {
+        wrap(
+            out,
+            &format!(
+                "The specification gives no [band] f_low: the capacitors are sized for the \
+                 default corner, {} (the low edge of the audio band). Set [band] f_low to size \
+                 them for your band.",
+                with_unit(plan.f_low_hz, "Hz")
+            ),
+            "",
+        );
+    }
     wrap(out, &format!("Rule: {}", plan.rule), "");
     let mut t = table(vec![
         "part",
@@ -113,7 +114,7 @@ fn caps_section(out: &mut String, plan: &CapPlan) {
     for c in &plan.caps {
         t.add_row(vec![
             c.designator.clone(),
-            role_text(c.role).to_string(),
+            c.role_words().to_string(),
             format!("{}F", format_value(c.farads)),
             format!(
                 "{} {} ±{}%",
@@ -151,8 +152,77 @@ fn caps_section(out: &mut String, plan: &CapPlan) {
     out.push('\n');
 }
 
+/// The "Parts to buy" table, then the notes of the lines that have any.
+fn parts_table(lines: &[BomLine]) -> String {
+    let mut t = table(vec![
+        "#",
+        "qty",
+        "parts (role)",
+        "value",
+        "tol.",
+        "rating",
+        "worst duty",
+        "package",
+    ]);
+    let mut notes = String::new();
+    for (i, l) in lines.iter().enumerate() {
+        let item = i + 1;
+        let parts: Vec<String> = l
+            .designators
+            .iter()
+            .zip(&l.roles)
+            .map(|(d, r)| format!("{d} = {r}"))
+            .collect();
+        let value = match l.class {
+            PartClass::Resistor => bom_value(l, Symbols::Unicode),
+            PartClass::FilmCapacitor => format!("{} film", bom_value(l, Symbols::Unicode)),
+            PartClass::ElectrolyticCapacitor => {
+                format!("{} electrolytic", bom_value(l, Symbols::Unicode))
+            }
+            PartClass::Fet => l.description.clone(),
+        };
+        let series = super::printable(&l.series);
+        let rating = match l.class {
+            PartClass::Resistor => l.power_rating_w.map_or_else(String::new, rating_text),
+            PartClass::FilmCapacitor | PartClass::ElectrolyticCapacitor => l
+                .voltage_rating_v
+                .map_or_else(String::new, |v| with_unit(v, "V")),
+            PartClass::Fet => {
+                let mut r = Vec::new();
+                if let Some(v) = l.voltage_rating_v {
+                    r.push(format!("VDS ≥ {}", with_unit(v, "V")));
+                }
+                if let Some(w) = l.power_rating_w {
+                    r.push(format!("PD ≥ {}", with_unit(w, "W")));
+                }
+                r.join(", ")
+            }
+        };
+        let duty = match (l.power_worst_w, l.voltage_worst_v) {
+            (Some(w), Some(v)) => format!("{} at {}", with_unit(w, "W"), with_unit(v, "V")),
+            (None, Some(v)) => format!("{} DC", with_unit(v, "V")),
+            (Some(w), None) => with_unit(w, "W"),
+            (None, None) => String::new(),
+        };
+        t.add_row(vec![
+            item.to_string(),
+            l.quantity().to_string(),
+            parts.join("\n"),
+            format!("{value} ({series})"),
+            tolerance_text(l, Symbols::Unicode),
+            rating,
+            duty,
+            l.package.clone(),
+        ]);
+        if !l.notes.is_empty() {
+            wrap(&mut notes, &format!("{item}: {}", l.notes.join("; ")), "");
+        }
+    }
+    format!("{t}\n{notes}")
+}
+
 /// The bench report as text.
-pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
+pub fn bench(v: &BenchView) -> String {
     let d = &v.design;
     let mut out = String::new();
     let nominal = v.nominal_only;
@@ -187,33 +257,15 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
     out.push('\n');
 
     heading(&mut out, "Parts to buy");
-    let mut t = table(vec![
-        "part",
-        "value",
-        "series",
-        "tolerance",
-        "rating to buy",
-        "qty",
-        "worst duty / notes",
-    ]);
-    for r in bom {
-        t.add_row(vec![
-            r.designator.clone(),
-            r.value.clone(),
-            r.series.clone(),
-            r.tolerance.clone(),
-            r.rating.clone(),
-            r.quantity.to_string(),
-            r.notes.clone(),
-        ]);
-    }
-    out.push_str(&t.to_string());
-    out.push('\n');
+    out.push_str(&parts_table(&v.bom.lines));
     wrap(
         &mut out,
-        "Resistor ratings: the smallest standard wattage at least twice the worst dissipation \
-         over every device corner, resistor tolerance and supply extreme (50 % derating, common \
-         practice). Capacitor voltage: at least 1.5 times the supply span (common practice).",
+        "Resistor ratings: the smallest standard part whose power rating is at least twice the \
+         worst dissipation over every device corner, resistor tolerance and supply extreme (50 % \
+         derating), and whose working voltage is at least 1.25 times the worst voltage (80 % \
+         derating; common practice). Capacitor voltage: at least 1.5 times the supply span \
+         (common practice). FET: at least the supply span across it and twice its worst \
+         dissipation.",
         "",
     );
 
@@ -307,16 +359,7 @@ pub fn bench(v: &BenchView, bom: &[BomRow]) -> String {
     }
 
     heading(&mut out, "Capacitors");
-    match &v.caps {
-        Some(plan) => caps_section(&mut out, plan),
-        None => wrap(
-            &mut out,
-            "Not sized: the specification gives no [band] f_low. The netlist and the response \
-             use 1 F placeholders (a short at every signal frequency); set [band] f_low to size \
-             them.",
-            "",
-        ),
-    }
+    caps_section(&mut out, &v.caps, v.f_low_given);
 
     heading(&mut out, "Cautions");
     if v.cautions.is_empty() {

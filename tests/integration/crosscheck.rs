@@ -15,7 +15,7 @@ use crate::util::{loud, ngspice_or_skip, rel, spice_op, TOLERANCE};
 use gatewright::analysis::{quick, Problem};
 use gatewright::bench::crosscheck::{crosscheck, Quantity, REL_TOL};
 use gatewright::catalog::Catalog;
-use gatewright::report::spice::per_corner;
+use gatewright::report::spice::netlist_to_spice;
 use gatewright::search::{self, Design, Options, Shelf};
 use gatewright::spec::CatalogChoice;
 use std::path::{Path, PathBuf};
@@ -167,18 +167,17 @@ fn ngspice_confirms_the_top_designs_of_every_example() {
     let mut runs = 0;
     for e in examples() {
         let p = &e.problem;
-        let input = p.netlist_input(&p.nominal);
         for (i, d) in e.designs.iter().enumerate() {
             let what = describe(e, i + 1, d);
             let t = d.topology;
             let stem = format!("{}-{}", e.file.trim_end_matches(".toml"), i + 1);
-            let decks = per_corner(t, &d.values, &input, &p.corners, &stem, &[]);
-            assert_eq!(decks.len(), p.corners.len(), "{what}");
-            for (deck, corner) in decks.iter().zip(&p.corners) {
+            for (k, corner) in p.corners.iter().enumerate() {
                 let ctx = format!("{what} ({})", corner.label);
                 let ours = quick(p, t, &d.values, &corner.law, &p.rails);
                 let net = t.netlist(&d.values, &p.netlist_input(corner));
-                let op = spice_op(&net, &deck.text, &deck.file_name.replace(".cir", ""), &ctx);
+                let title = format!("{stem} corner {k}");
+                let deck = netlist_to_spice(&net, &title, &[]);
+                let op = spice_op(&net, &deck, &format!("{stem}-corner{k}"), &ctx);
                 runs += 1;
                 let (id, vds, gain) = (op.id_a, op.vds_v, op.gain);
                 let pairs = [
@@ -186,16 +185,15 @@ fn ngspice_confirms_the_top_designs_of_every_example() {
                     (vds, ours.eval.op.vds_v),
                     (gain, ours.gain.abs()),
                 ];
-                for (k, (ng, gw)) in pairs.into_iter().enumerate() {
+                for (q, (ng, gw)) in pairs.into_iter().enumerate() {
                     let r = rel(ng, gw);
                     assert!(
                         r <= TOLERANCE,
-                        "{ctx}: {} ngspice {ng:e} vs gatewright {gw:e} (relative {r:e})\n{}",
-                        names[k],
-                        deck.text
+                        "{ctx}: {} ngspice {ng:e} vs gatewright {gw:e} (relative {r:e})\n{deck}",
+                        names[q],
                     );
-                    if r >= worst[k].0 {
-                        worst[k] = (r, format!("{ctx} (ngspice {ng:e}, gatewright {gw:e})"));
+                    if r >= worst[q].0 {
+                        worst[q] = (r, format!("{ctx} (ngspice {ng:e}, gatewright {gw:e})"));
                     }
                 }
             }
@@ -481,8 +479,11 @@ fn verify_help_documents_the_exit_codes() {
     }
 }
 
+// `--format spice` prints one deck (ngspice runs one circuit per file);
+// with `--spice-corners` that deck runs the nominal device and then each
+// of the example's four device corners (IDSS and VGS(off) ranged).
 #[test]
-fn spice_corners_gives_one_deck_per_design_and_corner() {
+fn spice_corners_gives_one_deck_that_runs_every_corner() {
     let out = gatewright(&[
         "design",
         "examples/piezo-buffer.toml",
@@ -494,41 +495,22 @@ fn spice_corners_gives_one_deck_per_design_and_corner() {
     ]);
     assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
     let s = text(&out.stdout);
-    // The piezo example's class ranges IDSS and VGS(off): four corners.
-    let ends = s.lines().filter(|l| *l == ".end").count();
-    let seps: Vec<&str> = s
+    assert_eq!(s.lines().filter(|l| *l == ".end").count(), 1, "{s}");
+    assert!(s.starts_with("gatewright design #1 "), "{s}");
+    let corners: Vec<&str> = s
         .lines()
-        .filter(|l| l.starts_with("* ==== end of"))
+        .filter(|l| l.starts_with("echo corner "))
         .collect();
-    assert_eq!(ends, seps.len());
-    assert!(ends == 4 || ends == 8, "{ends} decks\n{s}");
+    assert_eq!(corners.len(), 4, "{s}");
     assert!(
-        seps[0].contains("design 1") && seps[0].contains("device corner 0"),
+        corners[0].starts_with("echo corner 0: idss="),
         "{}",
-        seps[0]
+        corners[0]
     );
-    // Every deck starts with its title line, and each separator follows a
-    // deck's `.end` (ngspice ignores what comes after `.end`).
-    let lines: Vec<&str> = s.lines().collect();
-    assert!(lines[0].starts_with("design1 "), "{}", lines[0]);
-    for (i, l) in lines.iter().enumerate() {
-        if l.starts_with("* ==== end of") {
-            assert_eq!(lines[i - 1], ".end");
-            if let Some(next) = lines.get(i + 1) {
-                assert!(next.starts_with("design"), "{next}");
-            }
-        }
-    }
-    let nominal = gatewright(&[
-        "design",
-        "examples/piezo-buffer.toml",
-        "--top",
-        "2",
-        "--format",
-        "spice",
-    ]);
+    let nominal = gatewright(&["design", "examples/piezo-buffer.toml", "--format", "spice"]);
     let n = text(&nominal.stdout);
-    assert_eq!(n.lines().filter(|l| *l == ".end").count(), ends / 4);
+    assert_eq!(n.lines().filter(|l| *l == ".end").count(), 1);
+    assert!(!n.contains("altermod"));
     let bad = gatewright(&["design", "examples/piezo-buffer.toml", "--spice-corners"]);
     assert_eq!(bad.status.code(), Some(2));
     assert!(text(&bad.stderr).contains("`--spice-corners` works with `--format spice` only"));

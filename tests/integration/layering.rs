@@ -53,16 +53,16 @@ const COMPUTING: [&str; 7] = [
 /// only.
 const FORMATTING: [&str; 1] = ["with_unit"];
 
-/// Exporter imports of computing functions that were there when this test
-/// was written; moving the engineering out of `report` (issue 28) removes
-/// them. Do not add to this list.
-const KNOWN: [(&str, &str); 5] = [
-    ("report/svg/bias.rs", "tolerance_extremes"),
-    ("report/bom.rs", "capacitor_rating_v"),
-    ("report/bom.rs", "rate"),
-    ("report/bom.rs", "rating_text"),
-    ("report/bom.rs", "supply_span_v"),
-];
+/// Exporter imports of computing functions allowed by exception: none
+/// since the engineering moved out of `report` into the bench stage (issue
+/// 28). Do not add to this list.
+const KNOWN: [(&str, &str); 0] = [];
+
+/// What `report` may name at all: the bench stage's data, netlists,
+/// catalog query results and unit formatting (DEVELOPERS.md: "uses only
+/// `bench`, `netlist`, `catalog` and `units`"); never the search, the
+/// device equations, the topologies, the analysis or the solver.
+const REPORT_NAMES: [&str; 4] = ["bench", "netlist", "catalog", "units"];
 
 /// The files of the default search, lowest first: each may name only the
 /// ones before it (`mod.rs`, the search itself, names them all).
@@ -253,6 +253,30 @@ fn every_module_names_only_its_own_layer_or_below() {
     assert!(files.len() > 50, "found only {} source files", files.len());
     let bad = violations(&files);
     assert!(bad.is_empty(), "layering broken:\n{}", bad.join("\n"));
+}
+
+#[test]
+fn report_names_only_the_data_it_formats() {
+    let mut bad = Vec::new();
+    for (rel, module, code) in sources() {
+        if module != "report" {
+            continue;
+        }
+        for (segs, _) in crate_paths(&code) {
+            let Some(dep) = segs.first() else { continue };
+            if dep != "report" && !REPORT_NAMES.contains(&dep.as_str()) {
+                bad.push(format!(
+                    "{rel}: names `crate::{}`; report formats data from {REPORT_NAMES:?} only",
+                    segs.join("::")
+                ));
+            }
+        }
+    }
+    assert!(
+        bad.is_empty(),
+        "report reaches past its data:\n{}",
+        bad.join("\n")
+    );
 }
 
 #[test]

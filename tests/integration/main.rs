@@ -29,6 +29,8 @@ mod search_props;
 /// Output swing, temperature, noise and distortion against ngspice.
 mod signal_ngspice;
 mod spec_errors;
+/// The CLI's `--format spice` output of every example through ngspice.
+mod spice_cli;
 /// Exit codes and streams of the binary.
 mod streams;
 /// Shared helpers (ngspice runs).

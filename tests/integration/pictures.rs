@@ -9,17 +9,21 @@
 //! a PNG in DIR for a person to look at.
 
 use gatewright::analysis::{worst_case, Problem};
+use gatewright::bench::bias::bias_window;
+use gatewright::bench::bom::bom;
+use gatewright::bench::caps::size;
 use gatewright::bench::ratings::resistor_duty;
+use gatewright::bench::response::{curve, netlist, Response};
 use gatewright::catalog::ESeries;
 use gatewright::device::{Device, Family, ParamRange, Params, Strength};
 use gatewright::rank::Metrics;
-use gatewright::report::bom::{bom_csv, bom_rows, HEADER};
+use gatewright::report::bom::{bom_csv, HEADER};
 use gatewright::report::svg::bias::bias_svg;
 use gatewright::report::svg::response::response_svg;
-use gatewright::report::svg::schematic::schematic_svg;
+use gatewright::report::svg::schematic::netlist_svg;
 use gatewright::search::Design;
 use gatewright::spec::{CatalogChoice, Limits, Parts, Polarity, Supply, Target, ValidSpec};
-use gatewright::topology::{by_id, TOPOLOGIES};
+use gatewright::topology::{by_id, Caps, TOPOLOGIES};
 use gatewright::units::format_value;
 use resvg::{tiny_skia, usvg};
 use std::sync::OnceLock;
@@ -199,7 +203,20 @@ fn every_topology_schematic_renders_with_its_labels() {
             .iter()
             .map(|(d, _)| ((*d).to_string(), 4.7e-6))
             .collect();
-        let svg = schematic_svg(&p, t, &values, &caps, "bench preamp");
+        let net = netlist(
+            &p,
+            t,
+            &values,
+            p.nominal.law,
+            Caps {
+                c_in_f: 4.7e-6,
+                c_out_f: 4.7e-6,
+                c_bypass_f: 4.7e-6,
+            },
+        );
+        let sized: Vec<&str> = caps.iter().map(|(d, _)| d.as_str()).collect();
+        let subtitle = format!("{}: {}", t.id(), t.summary());
+        let svg = netlist_svg(&net, "bench preamp", &subtitle, &sized);
         let inked = render(&svg, &format!("schematic-{}", t.id()));
         assert!(inked > 4000, "{}: only {inked} dark pixels", t.id());
         for (part, v) in t.parts().iter().zip(&values) {
@@ -239,19 +256,19 @@ fn bias_pictures_render_with_curves_axes_and_legend() {
     ] {
         let (p, t, values) = case(id);
         let tol = vec![0.05; values.len()];
-        let svg = bias_svg(
-            &p,
-            t,
-            &values,
-            &tol,
-            Some((1.5e-3, 4e-3)),
-            "bench preamp: bias",
-        );
+        let worst = worst_case(&p, t, &values, &tol);
+        let w = bias_window(&p, t, &values, &tol, Some((1.5e-3, 4e-3)), worst.id_max_a);
+        let svg = bias_svg(&w, "bench preamp: bias");
         let inked = render(&svg, &format!("bias-{id}"));
         assert!(inked > 8000, "{id}: only {inked} dark pixels");
+        let axis = if w.view.id_top_a < 1e-3 {
+            "ID (µA)"
+        } else {
+            "ID (mA)"
+        };
         for label in [
             "VGS (V)",
-            "ID (mA)",
+            axis,
             "allowed ID window",
             "bias line, nominal values",
         ] {
@@ -264,33 +281,63 @@ fn bias_pictures_render_with_curves_axes_and_legend() {
     }
 }
 
-// A mid-band gain of 5 with one real low-frequency pole at 20 Hz (textbook
-// first-order high-pass): |H| = 5/sqrt(1 + (20/f)²). 20·log10(5) = 13.98 dB,
-// so the −3 dB line is at 10.98 dB and the sweep crosses it at
-// 20/sqrt(10^0.3 − 1) = 19.96 Hz, printed as 20 Hz.
-#[test]
-fn response_picture_marks_the_three_db_line_and_corner() {
-    // 50 points a decade keep the interpolation error below 0.5 %.
-    let pts: Vec<(f64, f64)> = (0..=200)
+/// |gain| of a mid-band gain `a` with one real low-frequency pole at `fp`
+/// hertz (textbook first-order high-pass): a/sqrt(1 + (fp/f)²), at 60
+/// points a decade from 2 Hz to 20 kHz.
+fn one_pole(a: f64, fp: f64) -> Vec<(f64, f64)> {
+    (0..=240)
         .map(|i| {
-            let f = 10f64.powf(i as f64 / 50.0);
-            (f, 5.0 / (1.0 + (20.0 / f).powi(2)).sqrt())
+            let f = 2.0 * 10f64.powf(i as f64 / 60.0);
+            (f, a / (1.0 + (fp / f).powi(2)).sqrt())
         })
-        .collect();
-    let svg = response_svg(&pts, Some(20.0), "bench preamp: response");
+        .collect()
+}
+
+// Mid-band gain 5 (20·log10 5 = 13.98 dB) with a pole at fp = 20 Hz: the
+// curve is exactly 3 dB down at fp/sqrt(10^0.3 − 1) = 1.00238·fp = 20.05 Hz,
+// printed as 20 Hz. Two device corners: gain 4 (12.0 dB), pole 15 Hz
+// (15.04 Hz), and gain 6.3 (16.0 dB), pole 25 Hz (25.06 Hz, printed 25.1).
+// Every curve has its entry.
+#[test]
+fn response_picture_draws_every_corner_with_its_three_db_point() {
+    let r = Response {
+        nominal: curve("nominal", one_pole(5.0, 20.0)),
+        corners: vec![
+            curve("idss=min", one_pole(4.0, 15.0)),
+            curve("idss=max", one_pole(6.3, 25.0)),
+        ],
+        f_low_hz: 20.0,
+        f_low_given: true,
+    };
+    let svg = response_svg(&r, "bench preamp: response");
     let inked = render(&svg, "response");
     assert!(inked > 4000, "only {inked} dark pixels");
     for label in [
         "frequency (Hz)",
         "gain (dB)",
-        "−3 dB: 11 dB",
-        "gain, mid-band 14 dB",
-        "design corner f_L = 20 Hz",
-        "−3 dB point of the sweep: 20 Hz",
+        "nominal device",
+        "mid-band 14 dB, −3 dB at 20 Hz",
+        "idss=min",
+        "mid-band 12 dB, −3 dB at 15 Hz",
+        "idss=max",
+        "mid-band 16 dB, −3 dB at 25.1 Hz",
+        "f_low = 20 Hz",
     ] {
         assert!(has_text(&svg, label), "no {label}: {:?}", texts(&svg));
     }
     snapshot("response", &svg);
+    // Without f_low the default corner is named as such.
+    let r = Response {
+        f_low_given: false,
+        ..r
+    };
+    let svg = response_svg(&r, "bench preamp: response");
+    assert!(has_text(&svg, "default corner 20 Hz"), "{:?}", texts(&svg));
+    assert!(
+        has_text(&svg, "no f_low given; capacitors sized for it"),
+        "{:?}",
+        texts(&svg)
+    );
 }
 
 /// Self-bias current on the strongest curve (IDSS 12 mA, VGS(off) −6 V)
@@ -309,75 +356,113 @@ fn shockley_self_bias(rs: f64) -> f64 {
     lo
 }
 
-// Self bias, RS 1 kΩ, RD 3.3 kΩ, ±5 %, VDD 20 V. The worst current is on the
-// strongest curve with RS at 950 Ω (3.10 mA); RD at 3465 Ω then dissipates
-// 33.4 mW: twice that is 66.8 mW, past 1/16 W, so 1/10 W (common practice,
-// REFERENCE §6). RS's worst is 9.15 mW at 950 Ω: 1/16 W.
-#[test]
-fn bom_lists_every_part_with_ratings_and_reads_back_as_csv() {
-    let p = Problem::new(&spec(Family::NJfet, 20.0, 0.0));
-    let t = by_id("self-bias").unwrap();
-    let values = vec![1e6, 1e3, 3.3e3];
-    let tolerances = vec![0.05; 3];
-    let wc = worst_case(&p, t, &values, &tolerances);
-    let design = Design {
+/// A ranked design of our own values, for the BOM.
+fn design(p: &Problem, t: &'static dyn gatewright::topology::Topology, values: &[f64]) -> Design {
+    let tolerances = vec![0.05; values.len()];
+    let wc = worst_case(p, t, values, &tolerances);
+    Design {
         topology: t,
         topology_index: 1,
-        values: values.clone(),
+        values: values.to_vec(),
         tolerances,
         worst: wc,
         metrics: Metrics::new(&p.spec, &wc, 3),
         score: 0.5,
-    };
-    let duty = resistor_duty(&p, t, &values, &design.tolerances);
-    let caps: Vec<(String, f64)> = vec![
-        ("C_IN".into(), 100e-9),
-        ("C_OUT".into(), 2.2e-6),
-        ("C_S".into(), 47e-6),
-    ];
-    let text = bom_csv(&bom_rows(&p, &design, "E24", &duty, &caps));
+    }
+}
+
+// Self bias, RS 1 kΩ, RD 3.3 kΩ, ±5 %, VDD 20 V. The worst current is on the
+// strongest curve with RS at 950 Ω (3.10 mA); RD at 3465 Ω then dissipates
+// 33.4 mW: twice that is 66.8 mW, past 1/16 W, so 1/10 W; its 10.7 V is
+// under 80 % of the 1/10 W part's sqrt(0.1 W · 3.3 kΩ) = 18.2 V, so 0603
+// (common practice, REFERENCE §6). RS's worst is 9.15 mW at 950 Ω: 1/16 W.
+#[test]
+fn bom_lists_every_part_with_ratings_and_reads_back_as_csv() {
+    let p = Problem::new(&spec(Family::NJfet, 20.0, 0.0));
+    let t = by_id("self-bias").unwrap();
+    let d = design(&p, t, &[1e6, 1e3, 3.3e3]);
+    let duty = resistor_duty(&p, t, &d.values, &d.tolerances);
+    let plan = size(&p, t, &d.values, &d.tolerances, 20.0).unwrap();
+    let b = bom(&p, &d, "E24", &duty, &plan, true).unwrap();
+    let text = bom_csv(&b);
+    assert!(text.is_ascii(), "{text}");
     assert_eq!(text.lines().next(), Some(HEADER));
     let mut reader = csv::Reader::from_reader(text.as_bytes());
     let header: Vec<String> = reader.headers().unwrap().iter().map(String::from).collect();
-    assert_eq!(
-        header,
-        [
-            "designator",
-            "value",
-            "series",
-            "tolerance",
-            "rating",
-            "quantity",
-            "notes"
-        ]
-    );
+    assert_eq!(header.join(","), HEADER);
     let rows: Vec<Vec<String>> = reader
         .records()
         .map(|r| r.unwrap().iter().map(String::from).collect())
         .collect();
-    let names: Vec<&str> = rows.iter().map(|r| r[0].as_str()).collect();
-    assert_eq!(names, ["RG", "RS", "RD", "C_IN", "C_OUT", "C_S", "Q1"]);
+    let col = |name: &str| header.iter().position(|h| h == name).unwrap();
+    let cell = |row: usize, name: &str| rows[row][col(name)].clone();
+    let names: Vec<String> = rows.iter().map(|r| r[col("designators")].clone()).collect();
+    assert_eq!(names, ["R1", "R2", "R3", "C1", "C2", "C3", "Q1"]);
+    assert_eq!(cell(0, "roles"), "RG (gate return)");
+    assert_eq!(cell(1, "roles"), "RS (source, bypassed)");
+    assert_eq!(cell(2, "roles"), "RD (drain load)");
     let id = shockley_self_bias(950.0);
     let p_rd = id * id * 3465.0;
     assert!((duty[2].p_worst_w - p_rd).abs() < 1e-9 * p_rd);
-    assert_eq!(rows[2][1..6], ["3.3kΩ", "E24", "±5%", "1/10 W", "1"]);
-    assert_eq!(
-        rows[2][6],
-        format!(
-            "worst {} mW at {} V DC",
-            fmt3(p_rd * 1e3),
-            fmt3(id * 3465.0)
-        )
-    );
-    assert_eq!(rows[1][4], "1/16 W");
-    assert_eq!(rows[0][4], "1/16 W");
+    assert_eq!(cell(2, "value"), "3.3 kohm");
+    assert_eq!(cell(2, "tolerance"), "5%");
+    assert_eq!(cell(2, "power_rating"), "1/10 W");
+    assert_eq!(cell(2, "worst_power"), format!("{} mW", fmt3(p_rd * 1e3)));
+    assert_eq!(cell(2, "worst_voltage"), format!("{} V", fmt3(id * 3465.0)));
+    assert_eq!(cell(2, "package"), "0603 SMD or larger");
+    assert_eq!(cell(1, "power_rating"), "1/16 W");
+    assert_eq!(cell(0, "power_rating"), "1/16 W");
+    assert_eq!(cell(0, "qty"), "1");
     // Capacitors: 1.5 × 20 V = 30 V -> 35 V (common practice, from memory).
-    assert_eq!(rows[3][1..5], ["100nF", "", "", "35 V"]);
-    assert_eq!(rows[5][1], "47uF");
-    assert_eq!(rows[6][1], "n-channel JFET (n-jfet)");
-    assert_eq!(rows[6][2], "test-class");
-    assert_eq!(rows[6][4], "VDS >= 20 V");
+    assert_eq!(cell(3, "roles"), "C_IN (input coupling)");
+    assert_eq!(cell(3, "voltage_rating"), "35 V");
+    assert!(
+        cell(3, "notes").contains("sized for f_low = 20 Hz"),
+        "{text}"
+    );
+    // The bypass capacitor is an electrolytic from the source (VS > 0.1 V at
+    // every corner) to ground: its positive side is the source.
+    assert_eq!(cell(5, "part"), "aluminium electrolytic capacitor");
+    assert!(cell(5, "notes").contains("+ side to the source"), "{text}");
+    assert_eq!(cell(6, "value"), "n-channel JFET (n-jfet)");
+    assert_eq!(cell(6, "series"), "test-class");
+    assert_eq!(cell(6, "voltage_rating"), ">= 20 V");
+    assert!(cell(6, "notes").contains("idss 4 mA to 12 mA"), "{text}");
     snapshot("bom-self-bias", &text);
+}
+
+// A divider of two equal resistors at equal duty (1 MΩ each from 12 V:
+// 6 V and 36 µW apiece) is one line of quantity 2; without f_low every
+// capacitor says it is sized for the default corner.
+#[test]
+fn equal_parts_share_a_line_and_the_default_corner_is_named() {
+    let (p, t, values) = case("follower-divider");
+    let d = design(&p, t, &values);
+    let duty = resistor_duty(&p, t, &d.values, &d.tolerances);
+    let plan = size(&p, t, &d.values, &d.tolerances, 20.0).unwrap();
+    let b = bom(&p, &d, "E24", &duty, &plan, false).unwrap();
+    let first = &b.lines[0];
+    assert_eq!(first.designators, ["R1", "R2"]);
+    assert_eq!(first.quantity(), 2);
+    assert_eq!(
+        first.roles,
+        ["R1 (gate divider, upper)", "R2 (gate divider, lower)"]
+    );
+    assert_eq!(b.lines[1].designators, ["R3"]);
+    let caps: Vec<_> = b
+        .lines
+        .iter()
+        .filter(|l| l.designators[0].starts_with('C'))
+        .collect();
+    assert!(!caps.is_empty());
+    for l in caps {
+        assert!(
+            l.notes.iter().any(|n| n
+                == "sized for the default corner 20 Hz: the specification gives no [band] f_low"),
+            "{:?}",
+            l.notes
+        );
+    }
 }
 
 /// Three significant figures, as the BOM prints them.

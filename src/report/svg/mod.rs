@@ -30,6 +30,29 @@ pub(crate) const PALETTE: [(u8, u8, u8); 8] = [
     (240, 228, 66),
 ];
 
+/// The charts are drawn at `SCALE` times their size and shown at their
+/// size (the root element's width and height are the size, its viewBox the
+/// drawn one): plotters writes whole-pixel coordinates, and a quarter of a
+/// shown pixel is fine enough that a nearly flat curve shows no one-pixel
+/// stairs.
+pub(crate) const SCALE: u32 = 4;
+
+/// Drawn length for a shown length, in pixels.
+pub(crate) const fn px(shown: u32) -> u32 {
+    shown * SCALE
+}
+
+/// Drawn length for a shown length, in pixels, signed.
+pub(crate) const fn spx(shown: i32) -> i32 {
+    shown * SCALE as i32
+}
+
+/// The chart drawn at `SCALE` shown at `width` × `height`.
+pub(crate) fn shown_at(svg: String, width: u32, height: u32) -> String {
+    let drawn = format!("width=\"{}\" height=\"{}\"", px(width), px(height));
+    svg.replacen(&drawn, &format!("width=\"{width}\" height=\"{height}\""), 1)
+}
+
 /// Colour number `i`, cycling through [`PALETTE`].
 pub(crate) fn colour(i: usize) -> (u8, u8, u8) {
     PALETTE[i % PALETTE.len()]

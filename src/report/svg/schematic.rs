@@ -16,9 +16,7 @@
 //! node's height, then down) when they share neither row nor column.
 
 use super::symbols::{Anchor, Canvas, Pt};
-use crate::analysis::Problem;
 use crate::netlist::{Element, FetKind, Netlist, Node, GROUND};
-use crate::topology::{Caps, NetlistInput, Topology};
 use crate::units::format_value;
 
 const Y_VDD: i32 = 80;
@@ -32,37 +30,6 @@ const Y_VSS: i32 = 510;
 const STEP: i32 = 80;
 /// Room for a horizontal part with its leads.
 const SPAN: i32 = 110;
-
-/// The schematic of a design as SVG text. `values` are the resistor values
-/// in ohms in the topology's part order; `caps` gives capacitor values in
-/// farads by designator (a capacitor not listed is labelled without a
-/// value). Rails, load, source resistance and device kind come from `p`.
-pub fn schematic_svg(
-    p: &Problem,
-    t: &dyn Topology,
-    values: &[f64],
-    caps: &[(String, f64)],
-    title: &str,
-) -> String {
-    let find = |n: &str| caps.iter().find(|(d, _)| d == n).map(|(_, f)| *f);
-    let bypass = find("C_S").or_else(|| find("C_G"));
-    let input = NetlistInput {
-        law: p.nominal.law,
-        kind: p.kind,
-        rails: p.rails,
-        rl_ohm: p.spec.rl_ohm,
-        rsig_ohm: p.spec.source_resistance_ohm,
-        caps: Caps {
-            c_in_f: find("C_IN").unwrap_or(Caps::MID_BAND.c_in_f),
-            c_out_f: find("C_OUT").unwrap_or(Caps::MID_BAND.c_out_f),
-            c_bypass_f: bypass.unwrap_or(Caps::MID_BAND.c_bypass_f),
-        },
-    };
-    let net = t.netlist(values, &input);
-    let sized: Vec<&str> = caps.iter().map(|(d, _)| d.as_str()).collect();
-    let subtitle = format!("{}: {}", t.id(), t.summary());
-    netlist_svg(&net, title, &subtitle, &sized)
-}
 
 /// The schematic of any netlist built from the node names above. Capacitor
 /// values are printed only for the designators in `sized_caps`.

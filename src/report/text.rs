@@ -378,7 +378,7 @@ pub fn bench(v: &BenchView) -> String {
 
 /// Nominal mode: what the design does over the device's whole spread
 /// (nominal resistor values, every supply extreme).
-fn spread_section(out: &mut String, checks: &[crate::analysis::Check]) {
+fn spread_section(out: &mut String, checks: &[crate::bench::summary::Check]) {
     heading(
         out,
         "Over the device's datasheet spread (nominal resistor values)",

@@ -6,7 +6,7 @@ use std::path::PathBuf;
 /// gatewright: discrete FET amplifier stages from requirements, with
 /// standard resistor values, checked across the device's datasheet spread.
 #[derive(Debug, Parser)]
-#[command(name = "gatewright", version, about, long_about = None)]
+#[command(name = "gatewright", version, about, long_about = None, after_long_help = EXIT_AND_EXAMPLES)]
 pub(crate) struct Cli {
     #[command(subcommand)]
     pub(crate) cmd: Cmd,
@@ -27,7 +27,33 @@ pub(crate) enum Cmd {
     /// solver at every device corner.
     #[command(after_help = VERIFY_EXIT)]
     Verify(VerifyArgs),
+    /// Print a completion script for SHELL (e.g. `gatewright completions
+    /// bash > /etc/bash_completion.d/gatewright`).
+    Completions {
+        /// The shell to complete in.
+        #[arg(value_enum)]
+        shell: clap_complete::Shell,
+    },
+    /// Print the manual page (roff), of the program or of one command
+    /// (e.g. `gatewright manpage > gatewright.1; man -l gatewright.1`).
+    Manpage {
+        /// A command (`design`, `verify`, ...) for its own page
+        /// (gatewright-COMMAND).
+        command: Option<String>,
+    },
 }
+
+const EXIT_AND_EXAMPLES: &str = "Exit status:\n  \
+    0  the command did its job (for `design`, at least one feasible design)\n  \
+    1  `design`: no design meets the specification (the reasons are printed);\n     \
+       `verify`: the closed form and the solver disagree\n  \
+    2  bad input (specification, arguments, files) or an I/O error\n\n\
+    Examples:\n  \
+    gatewright design examples/line-gain.toml\n  \
+    gatewright design examples/line-gain.toml --format json > designs.json\n  \
+    gatewright verify examples/line-gain.toml --design designs.json --rank 2\n  \
+    gatewright design examples/line-gain.toml --pick 1 --out bench/\n  \
+    cat spec.toml | gatewright design -";
 
 const VERIFY_EXIT: &str = "Exit status:\n  \
     0  the closed form and the solver agree (within 1e-6 relative) at every corner\n  \
@@ -97,7 +123,7 @@ impl From<SearchArg> for crate::search::Method {
 
 #[derive(Debug, Args)]
 pub(crate) struct DesignArgs {
-    /// Specification file (TOML).
+    /// Specification file (TOML); `-` reads it from standard input.
     pub(crate) spec: PathBuf,
     /// Output format.
     #[arg(long, value_enum, default_value_t)]
@@ -136,7 +162,8 @@ pub(crate) struct DesignArgs {
 
 #[derive(Debug, Args)]
 pub(crate) struct VerifyArgs {
-    /// Specification file (TOML): device corners, rails, load, source.
+    /// Specification file (TOML): device corners, rails, load, source; `-`
+    /// reads it from standard input.
     pub(crate) spec: PathBuf,
     /// Topology id (see `gatewright topologies`); with `--values`.
     #[arg(long, requires = "values", required_unless_present = "design")]
@@ -158,7 +185,7 @@ pub(crate) struct VerifyArgs {
 
 #[derive(Debug, Args)]
 pub(crate) struct AnalyzeArgs {
-    /// Specification file (TOML).
+    /// Specification file (TOML); `-` reads it from standard input.
     pub(crate) spec: PathBuf,
     /// Topology id (see `gatewright topologies`).
     #[arg(long)]

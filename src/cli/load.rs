@@ -47,19 +47,35 @@ fn read_bounded(path: &Path, what: &str, limit: u64) -> Result<String> {
             );
         }
     }
+    read_stream(file, &format!("`{name}`"), what, limit)
+}
+
+/// The text of the specification on standard input (`-` for SPEC), at most
+/// [`MAX_INPUT_BYTES`] like a file.
+fn read_stdin(what: &str) -> Result<String> {
+    read_stream(std::io::stdin().lock(), STDIN, what, MAX_INPUT_BYTES)
+}
+
+/// How standard input is named in messages.
+const STDIN: &str = "standard input";
+
+/// Up to `limit` bytes of UTF-8 text from `reader`; `shown` names the
+/// source in messages.
+fn read_stream(reader: impl Read, shown: &str, what: &str, limit: u64) -> Result<String> {
     let mut bytes = Vec::new();
-    file.take(limit + 1)
+    reader
+        .take(limit + 1)
         .read_to_end(&mut bytes)
-        .with_context(|| format!("reading `{name}`"))?;
+        .with_context(|| format!("reading {shown}"))?;
     if bytes.len() as u64 > limit {
         bail!(
-            "`{name}`: the {what} runs past the limit of {} for an input file (read as a stream, from a pipe or device)",
+            "{shown}: the {what} runs past the limit of {} for an input file (read as a stream, from a pipe or device)",
             mib(limit)
         );
     }
     String::from_utf8(bytes).map_err(|e| {
         anyhow::anyhow!(
-            "reading `{name}`: the {what} is not UTF-8 text (invalid at byte offset {})",
+            "reading {shown}: the {what} is not UTF-8 text (invalid at byte offset {})",
             e.utf8_error().valid_up_to()
         )
     })
@@ -79,13 +95,25 @@ fn mib(bytes: u64) -> String {
     }
 }
 
-/// Read and check a specification, and load its catalog.
+/// Read and check a specification, and load its catalog. `-` reads it
+/// from standard input (a stock list it names is then looked for in the
+/// current folder).
 pub(crate) fn spec(path: &Path) -> Result<Loaded> {
-    let text = read_text(path, "specification")?;
-    let mut spec = crate::spec::parse(&text).with_context(|| format!("in `{}`", path.display()))?;
+    let stdin = path == Path::new("-");
+    let (text, shown) = if stdin {
+        (read_stdin("specification")?, STDIN.to_string())
+    } else {
+        (
+            read_text(path, "specification")?,
+            format!("`{}`", path.display()),
+        )
+    };
+    let mut spec = crate::spec::parse(&text).with_context(|| format!("in {shown}"))?;
     // A specification without a `name` is titled by its file.
     if spec.name.trim().is_empty() {
-        if let Some(stem) = path.file_stem() {
+        if stdin {
+            spec.name = "stdin".to_string();
+        } else if let Some(stem) = path.file_stem() {
             spec.name = stem.to_string_lossy().into_owned();
         }
     }
@@ -96,12 +124,16 @@ pub(crate) fn spec(path: &Path) -> Result<Loaded> {
             spec.parts.r_min_ohm,
             spec.parts.r_max_ohm,
         )
-        .with_context(|| format!("in `{}`: `parts.range`", path.display()))?,
+        .with_context(|| format!("in {shown}: `parts.range`"))?,
         CatalogChoice::StockFile(f) => {
-            let base = path.parent().unwrap_or_else(|| Path::new("."));
+            let base = if stdin {
+                Path::new("")
+            } else {
+                path.parent().unwrap_or_else(|| Path::new("."))
+            };
             let file = base.join(f);
             let text = read_text(&file, "stock list")
-                .with_context(|| format!("in `{}`: `parts.series` = \"{f}\"", path.display()))?;
+                .with_context(|| format!("in {shown}: `parts.series` = \"{f}\""))?;
             stock::parse(&text).with_context(|| format!("in stock list `{}`", file.display()))?
         }
     };

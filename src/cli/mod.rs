@@ -15,7 +15,7 @@ mod verify_cmd;
 
 use anyhow::{bail, Context, Result};
 use args::{Cli, Cmd, Format};
-use clap::Parser;
+use clap::{CommandFactory, Parser};
 use std::io::Write;
 use std::process::ExitCode;
 
@@ -84,6 +84,11 @@ fn json<T: serde::Serialize>(v: &T) -> Result<String> {
     Ok(s)
 }
 
+/// JSON of a `design`, `analyze` or `verify` view, `schema_version` first.
+fn versioned_json<T: serde::Serialize>(v: &T) -> Result<String> {
+    report::json::versioned(v).context("serialising JSON")
+}
+
 fn run(cli: Cli) -> Result<ExitCode> {
     match cli.cmd {
         Cmd::Snap(a) => snap_cmd(a),
@@ -110,7 +115,50 @@ fn run(cli: Cli) -> Result<ExitCode> {
         Cmd::Analyze(a) => analyze_cmd(a),
         Cmd::Design(a) => design_cmd(a),
         Cmd::Verify(a) => verify_cmd::run(a),
+        Cmd::Completions { shell } => {
+            let mut cmd = Cli::command();
+            let mut out = Vec::new();
+            clap_complete::generate(shell, &mut cmd, "gatewright", &mut out);
+            emit(&String::from_utf8_lossy(&out))?;
+            Ok(ExitCode::SUCCESS)
+        }
+        Cmd::Manpage { command } => {
+            emit(&manpage(command.as_deref())?)?;
+            Ok(ExitCode::SUCCESS)
+        }
     }
+}
+
+/// The roff manual page of the program, or of one of its commands (named
+/// gatewright-COMMAND, as man pages of subcommands are).
+fn manpage(command: Option<&str>) -> Result<String> {
+    let mut root = Cli::command();
+    let names: Vec<String> = root
+        .get_subcommands()
+        .map(|c| c.get_name().to_string())
+        .collect();
+    // Gives each command its full name (`gatewright design`) for the
+    // synopsis.
+    root.build();
+    let cmd = match command {
+        None => root,
+        Some(name) => match root.find_subcommand(name) {
+            Some(sub) if names.iter().any(|n| n == name) => {
+                sub.clone().display_name(format!("gatewright-{name}"))
+            }
+            _ => bail!(
+                "`manpage` COMMAND = {name}: unknown; expected one of {}",
+                names.join(", ")
+            ),
+        },
+    };
+    let mut out = Vec::new();
+    clap_mangen::Man::new(cmd)
+        .source(format!("gatewright {}", env!("CARGO_PKG_VERSION")))
+        .manual("gatewright manual")
+        .render(&mut out)
+        .context("writing the manual page")?;
+    Ok(String::from_utf8_lossy(&out).into_owned())
 }
 
 fn snap_cmd(a: args::SnapArgs) -> Result<ExitCode> {
@@ -192,7 +240,7 @@ fn analyze_cmd(a: args::AnalyzeArgs) -> Result<ExitCode> {
     }
     let view = summary::analysis(&p, t, &values, &tolerances);
     let text = match a.format {
-        Format::Json => json(&view)?,
+        Format::Json => versioned_json(&view)?,
         Format::Spice => {
             let input = load::netlist_input(&p, &p.nominal);
             let net = t.netlist(&values, &input);
@@ -250,7 +298,7 @@ fn design_cmd(a: args::DesignArgs) -> Result<ExitCode> {
         return bench::run(&full, &report_view, &outcome, n, a.out.as_deref(), a.force);
     }
     let text = match a.format {
-        Format::Json => json(&report_view)?,
+        Format::Json => versioned_json(&report_view)?,
         Format::Csv => report::csv::designs(&report_view),
         Format::Table | Format::Spice => report::table::design(&report_view),
     };

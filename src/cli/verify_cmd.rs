@@ -10,7 +10,7 @@ use std::path::Path;
 use std::process::ExitCode;
 
 use super::args::{Format, VerifyArgs};
-use super::{emit, json, load, talk};
+use super::{emit, load, talk, versioned_json};
 use crate::analysis::Problem;
 use crate::bench::crosscheck;
 use crate::topology::Topology;
@@ -46,7 +46,7 @@ pub(crate) fn run(a: VerifyArgs) -> Result<ExitCode> {
     let p = Problem::new(&loaded.spec);
     let view = crosscheck::verification(&p, t, &values);
     let text = match a.format {
-        Format::Json => json(&view)?,
+        Format::Json => versioned_json(&view)?,
         _ => {
             let order: Vec<String> = t.parts().iter().map(|s| s.to_string()).collect();
             crate::report::verify_table::verification(&view, &order)

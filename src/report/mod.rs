@@ -3,6 +3,7 @@
 
 pub mod bom;
 pub mod csv;
+pub mod json;
 pub mod spice;
 pub mod svg;
 pub mod table;

@@ -6,12 +6,16 @@ mod bench_outputs;
 /// Bad specification files and arguments through the binary: exit 2,
 /// pinned messages.
 mod cli_errors;
+/// Specification from standard input, shell completions, manual pages.
+mod conventions;
 /// Top designs of every example: closed form vs solver vs ngspice; `verify`.
 mod crosscheck;
 /// IEC 60063 tables and catalog queries.
 mod eseries;
 /// Fuzz corpora and regressions replayed through the parsers.
 mod fuzz_replay;
+/// Every JSON output against the strict schemas in `schema/`.
+mod json_schema;
 /// The module layering of DEVELOPERS.md, read from the sources.
 mod layering;
 /// Exported decks run through ngspice and compared with the closed forms.
